@@ -1,0 +1,1 @@
+//! Convergence diagnostics (placeholder until the module lands).

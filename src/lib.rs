@@ -1,0 +1,2 @@
+//! mixband: Bayesian density estimation with mixtures of normal distributions.
+pub mod diagnostics;
