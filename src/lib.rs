@@ -1,2 +1,33 @@
-//! mixband: Bayesian density estimation with mixtures of normal distributions.
+//! # mixband
+//!
+//! Bayesian density estimation with mixtures of normal distributions. Given one sample of
+//! a continuous measurement, mixband fits a location mixture (one common bandwidth) or a
+//! location-scale mixture (a bandwidth per component) by Gibbs sampling, with a finite
+//! Dirichlet or a truncated stick-breaking prior on the weights, and reports the posterior
+//! over densities: the pointwise posterior mean on a grid and credible bands, after
+//! convergence checks.
+//!
+//! The pipeline, one module a stage:
+//! - [`config`]: the TOML run description and its defaults;
+//! - [`data`]: loading and standardising the sample;
+//! - [`model`] and [`dist`]: priors, state and the random draws the sampler needs;
+//! - [`sampler`]: the Gibbs sweep and chains;
+//! - [`store`]: the run directory (draws, checkpoints, manifest);
+//! - [`summary`]: densities on a grid and pointwise bands;
+//! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
+//! - [`run`]: the whole job; [`cli`]: the thin command line over it.
+
+pub mod cli;
+pub mod config;
+pub mod data;
 pub mod diagnostics;
+pub mod dist;
+pub mod error;
+pub mod model;
+pub mod numfmt;
+pub mod run;
+pub mod sampler;
+pub mod store;
+pub mod summary;
+
+pub use error::{Error, Result};

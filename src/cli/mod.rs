@@ -1,0 +1,153 @@
+//! The command line: argument definitions and dispatch to the library. Each subcommand
+//! lives in its own file and does little beyond calling library functions and printing.
+
+mod bands;
+mod demo;
+mod sample;
+mod template;
+
+use std::path::PathBuf;
+use std::sync::atomic::AtomicBool;
+
+use clap::{Parser, Subcommand};
+
+use crate::error::Result;
+
+/// Raised by the SIGINT handler.
+pub static STOP: AtomicBool = AtomicBool::new(false);
+
+const EXIT_CODES: &str = "Exit codes: 0 success; 1 internal error; 2 bad input (config, data, arguments); \
+3 convergence gate failed (outputs written, marked NOT CONVERGED); 130 interrupted (resume with `mixband resume RUN`).";
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "mixband",
+    version,
+    about = "Bayesian density estimation with mixtures of normals: posterior mean density and credible bands by Gibbs sampling",
+    after_help = EXIT_CODES
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// Options shared by every command that samples.
+#[derive(Debug, Clone, clap::Args)]
+pub struct SampleOpts {
+    /// Worker threads for chains (default: all cores). Results do not depend on it.
+    #[arg(long)]
+    pub threads: Option<usize>,
+    /// No progress bars.
+    #[arg(long, short)]
+    pub quiet: bool,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Sample the posterior described by a config file and summarise it.
+    #[command(after_help = EXIT_CODES)]
+    Sample {
+        /// The run's TOML config.
+        config: PathBuf,
+        /// Run directory to create.
+        #[arg(long)]
+        out: PathBuf,
+        /// Replace an earlier mixband run in --out.
+        #[arg(long)]
+        force: bool,
+        #[command(flatten)]
+        opts: SampleOpts,
+    },
+    /// Run the built-in demo (invented wing-length data) end to end.
+    #[command(after_help = EXIT_CODES)]
+    Demo {
+        /// Run directory to create.
+        #[arg(long, default_value = "mixband-demo")]
+        out: PathBuf,
+        /// Replace an earlier mixband run in --out.
+        #[arg(long)]
+        force: bool,
+        #[command(flatten)]
+        opts: SampleOpts,
+    },
+    /// Continue an interrupted run to its configured length.
+    Resume {
+        run: PathBuf,
+        #[command(flatten)]
+        opts: SampleOpts,
+    },
+    /// Add draws to every chain of a finished run.
+    Extend {
+        run: PathBuf,
+        /// Draws to add per chain.
+        #[arg(long)]
+        draws: usize,
+        #[command(flatten)]
+        opts: SampleOpts,
+    },
+    /// Recompute the density bands of a run from its stored draws.
+    Bands {
+        run: PathBuf,
+        /// Grid points.
+        #[arg(long)]
+        points: Option<usize>,
+        /// Grid start.
+        #[arg(long, allow_hyphen_values = true)]
+        from: Option<f64>,
+        /// Grid end.
+        #[arg(long, allow_hyphen_values = true)]
+        to: Option<f64>,
+        /// Credible levels, comma separated (e.g. 0.5,0.9).
+        #[arg(long, value_delimiter = ',')]
+        levels: Option<Vec<f64>>,
+    },
+    /// Print a commented starter config listing every key.
+    Template,
+}
+
+/// Runs the parsed command; returns the process exit code.
+pub fn run(cli: Cli) -> Result<i32> {
+    match cli.command {
+        Command::Sample {
+            config,
+            out,
+            force,
+            opts,
+        } => sample::sample(&config, &out, force, &opts),
+        Command::Demo { out, force, opts } => demo::demo(&out, force, &opts),
+        Command::Resume { run, opts } => sample::resume(&run, None, &opts),
+        Command::Extend { run, draws, opts } => sample::resume(&run, Some(draws), &opts),
+        Command::Bands {
+            run,
+            points,
+            from,
+            to,
+            levels,
+        } => bands::bands(&run, points, from, to, levels),
+        Command::Template => {
+            print!("{}", crate::config::TEMPLATE);
+            Ok(0)
+        }
+    }
+}
+
+/// Entry point used by `main`: parses arguments, installs the SIGINT handler, runs, and
+/// prints errors. Returns the exit code.
+pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32 {
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return code;
+        }
+    };
+    let _ = ctrlc::set_handler(|| STOP.store(true, std::sync::atomic::Ordering::SeqCst));
+    match run(cli) {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("mixband: error: {e}");
+            e.exit_code()
+        }
+    }
+}

@@ -1,0 +1,1 @@
+//! `mixband template` is served directly from [`crate::config::TEMPLATE`].

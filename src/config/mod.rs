@@ -1,0 +1,17 @@
+//! The run configuration: what a user writes in TOML ([`raw::RawConfig`]), the checked and
+//! fully resolved form the sampler uses ([`RunConfig`]), and the commented starter file.
+//!
+//! Every key a run depends on is filled in by [`resolve`] and written back to the run
+//! directory as `config.toml`, so sampling that file again reproduces the run exactly.
+
+pub mod locate;
+pub mod raw;
+mod resolve;
+mod template;
+
+pub use raw::{HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
+pub use resolve::{
+    check_levels as resolve_check_levels, default_components, parse_config_file, parse_config_str, resolve,
+    PriorValues, RunConfig,
+};
+pub use template::TEMPLATE;

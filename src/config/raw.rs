@@ -1,0 +1,131 @@
+//! The config file as written: every section and key, most of them optional.
+//! Unknown keys are rejected (serde `deny_unknown_fields`) with their name and line.
+
+use serde::{Deserialize, Serialize};
+
+/// Mixture component family.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Kernel {
+    /// N(μ_k, σ²) with one common σ: the model-based counterpart of a Gaussian kernel
+    /// density estimate with bandwidth σ.
+    Location,
+    /// N(μ_k, σ_k²): each component its own bandwidth.
+    LocationScale,
+}
+
+/// Prior on the mixture weights.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum WeightsKind {
+    /// K components with symmetric Dirichlet(δ) weights.
+    Dirichlet,
+    /// Truncated stick-breaking at K (blocked Gibbs, Ishwaran & James 2001).
+    StickBreaking,
+}
+
+/// Whether a hyperparameter is held fixed or given a Gamma prior.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum HyperChoice {
+    Fixed,
+    Gamma,
+}
+
+/// What to do with empty cells in the data column.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum MissingPolicy {
+    Error,
+    Drop,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawConfig {
+    pub data: Option<DataSection>,
+    pub model: Option<ModelSection>,
+    pub prior: Option<PriorSection>,
+    pub sampler: Option<SamplerSection>,
+    pub grid: Option<GridSection>,
+    pub bands: Option<BandsSection>,
+    pub gate: Option<GateSection>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DataSection {
+    pub file: Option<String>,
+    pub column: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub units: Option<String>,
+    pub missing: Option<MissingPolicy>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ModelSection {
+    pub kernel: Option<Kernel>,
+    pub weights: Option<WeightsKind>,
+    pub components: Option<i64>,
+}
+
+/// Prior overrides, in the units of the data.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PriorSection {
+    /// m: prior centre of the component means.
+    pub centre: Option<f64>,
+    /// s: prior sd of the component means (location kernel).
+    pub centre_sd: Option<f64>,
+    /// κ: μ_k | σ_k² ~ N(m, σ_k²/κ) (location-scale kernel).
+    pub centre_shrink: Option<f64>,
+    /// a: σ² ~ Inverse-Gamma(a, b).
+    pub var_shape: Option<f64>,
+    /// "fixed" or "gamma": whether b is fixed or b ~ Gamma(var_scale_shape, var_scale_rate).
+    pub var_scale_prior: Option<HyperChoice>,
+    /// b when fixed (data units squared).
+    pub var_scale: Option<f64>,
+    pub var_scale_shape: Option<f64>,
+    /// Rate of the Gamma prior on b (per data unit squared).
+    pub var_scale_rate: Option<f64>,
+    /// δ of the symmetric Dirichlet weight prior.
+    pub dirichlet_delta: Option<f64>,
+    /// "fixed" or "gamma" for the stick-breaking concentration α.
+    pub alpha_prior: Option<HyperChoice>,
+    pub alpha: Option<f64>,
+    pub alpha_shape: Option<f64>,
+    pub alpha_rate: Option<f64>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SamplerSection {
+    pub chains: Option<i64>,
+    pub warmup: Option<i64>,
+    pub draws: Option<i64>,
+    pub thin: Option<i64>,
+    pub seed: Option<i64>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GridSection {
+    pub from: Option<f64>,
+    pub to: Option<f64>,
+    pub points: Option<i64>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct BandsSection {
+    pub levels: Option<Vec<f64>>,
+}
+
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct GateSection {
+    pub max_rhat: Option<f64>,
+    pub min_ess: Option<f64>,
+    pub min_chains: Option<i64>,
+}

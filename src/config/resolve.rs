@@ -1,0 +1,370 @@
+//! Checking a parsed config and filling in every default, some of which depend on the data
+//! (prior scales and the grid are set from the sample's centre and spread).
+
+use std::path::{Path, PathBuf};
+
+use serde::Serialize;
+
+use super::locate::key_line;
+use super::raw::*;
+use crate::data::DataSummary;
+use crate::error::{Error, Result};
+
+/// Reads and parses a config file. Errors name the file and, from the TOML parser, the
+/// line and column.
+pub fn parse_config_file(path: &Path) -> Result<(RawConfig, String)> {
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        Error::input(format!("cannot read config file {}: {e}", path.display()))
+    })?;
+    let raw = parse_config_str(&text, &path.display().to_string())?;
+    Ok((raw, text))
+}
+
+/// Parses config text; `origin` names it in messages.
+pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
+    toml::from_str::<RawConfig>(text)
+        .map_err(|e| Error::input(format!("{origin}: invalid config: {}", e.to_string().trim_end())))
+}
+
+/// Data-independent settings of a run.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RunConfig {
+    /// Data file as resolved against the config's folder.
+    pub data_file: PathBuf,
+    /// Data file as it is to be written into a resolved config.
+    pub data_file_text: String,
+    pub column: String,
+    pub units: Option<String>,
+    pub missing: MissingPolicy,
+    pub kernel: Kernel,
+    pub weights: WeightsKind,
+    pub components: usize,
+    pub prior: PriorValues,
+    pub chains: usize,
+    pub warmup: usize,
+    pub draws: usize,
+    pub thin: usize,
+    pub seed: u64,
+    pub grid_from: f64,
+    pub grid_to: f64,
+    pub grid_points: usize,
+    pub levels: Vec<f64>,
+    pub max_rhat: f64,
+    pub min_ess: f64,
+    pub min_chains: usize,
+}
+
+/// Every prior hyperparameter, in the units of the data.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct PriorValues {
+    pub centre: f64,
+    pub centre_sd: f64,
+    pub centre_shrink: f64,
+    pub var_shape: f64,
+    pub var_scale_prior: HyperChoice,
+    pub var_scale: f64,
+    pub var_scale_shape: f64,
+    pub var_scale_rate: f64,
+    pub dirichlet_delta: f64,
+    pub alpha_prior: HyperChoice,
+    pub alpha: f64,
+    pub alpha_shape: f64,
+    pub alpha_rate: f64,
+}
+
+/// Default number of components for each weight prior.
+pub fn default_components(weights: WeightsKind) -> usize {
+    match weights {
+        WeightsKind::Dirichlet => 10,
+        WeightsKind::StickBreaking => 25,
+    }
+}
+
+struct Checker<'a> {
+    text: &'a str,
+    origin: &'a str,
+}
+
+impl Checker<'_> {
+    fn fail(&self, section: &str, key: &str, what: String) -> Error {
+        let line = key_line(self.text, section, key)
+            .map(|l| format!(" (line {l})"))
+            .unwrap_or_default();
+        Error::input(format!("{}: [{section}] {key} {what}{line}", self.origin))
+    }
+
+    fn int_at_least(&self, section: &str, key: &str, v: Option<i64>, min: i64, default: i64) -> Result<usize> {
+        let v = v.unwrap_or(default);
+        if v < min {
+            return Err(self.fail(section, key, format!("must be at least {min}, got {v}")));
+        }
+        usize::try_from(v).map_err(|_| self.fail(section, key, format!("is too large: {v}")))
+    }
+
+    fn positive(&self, key: &str, v: Option<f64>) -> Result<Option<f64>> {
+        match v {
+            Some(x) if !(x.is_finite() && x > 0.0) => {
+                Err(self.fail("prior", key, format!("must be a positive finite number, got {x}")))
+            }
+            other => Ok(other),
+        }
+    }
+
+    fn finite(&self, section: &str, key: &str, v: Option<f64>) -> Result<Option<f64>> {
+        match v {
+            Some(x) if !x.is_finite() => Err(self.fail(section, key, format!("must be finite, got {x}"))),
+            other => Ok(other),
+        }
+    }
+}
+
+/// Checks the config and fills in every default; `summary` describes the loaded data and
+/// `config_dir` is the folder data paths are relative to.
+///
+/// Data-dependent defaults (in data units, `c` the sample mean, `sd` its standard deviation,
+/// `R` its range) are documented in docs/model.md.
+pub fn resolve(
+    raw: &RawConfig,
+    text: &str,
+    origin: &str,
+    config_dir: &Path,
+    summary: Option<&DataSummary>,
+) -> Result<RunConfig> {
+    let ck = Checker { text, origin };
+    let data = raw.data.clone().unwrap_or_default();
+    let file = data
+        .file
+        .clone()
+        .ok_or_else(|| Error::input(format!("{origin}: missing required key [data] file")))?;
+    let column = data
+        .column
+        .clone()
+        .ok_or_else(|| Error::input(format!("{origin}: missing required key [data] column")))?;
+    if column.trim().is_empty() {
+        return Err(ck.fail("data", "column", "must not be empty".into()));
+    }
+    let data_file = if Path::new(&file).is_absolute() {
+        PathBuf::from(&file)
+    } else {
+        config_dir.join(&file)
+    };
+
+    let model = raw.model.clone().unwrap_or_default();
+    let kernel = model.kernel.unwrap_or(Kernel::LocationScale);
+    let weights = model.weights.unwrap_or(WeightsKind::Dirichlet);
+    let components = ck.int_at_least(
+        "model",
+        "components",
+        model.components,
+        1,
+        default_components(weights) as i64,
+    )?;
+
+    let s = raw.sampler.clone().unwrap_or_default();
+    let chains = ck.int_at_least("sampler", "chains", s.chains, 1, 4)?;
+    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 1000)?;
+    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 1000)?;
+    let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
+    let seed = match s.seed {
+        Some(v) if v < 0 => return Err(ck.fail("sampler", "seed", format!("must be a non-negative integer, got {v}"))),
+        Some(v) => v as u64,
+        None => fresh_seed(),
+    };
+
+    let p = raw.prior.clone().unwrap_or_default();
+    let centre = ck.finite("prior", "centre", p.centre)?;
+    let centre_sd = ck.positive("centre_sd", p.centre_sd)?;
+    let centre_shrink = ck.positive("centre_shrink", p.centre_shrink)?;
+    let var_shape = ck.positive("var_shape", p.var_shape)?;
+    let var_scale = ck.positive("var_scale", p.var_scale)?;
+    let var_scale_shape = ck.positive("var_scale_shape", p.var_scale_shape)?;
+    let var_scale_rate = ck.positive("var_scale_rate", p.var_scale_rate)?;
+    let dirichlet_delta = ck.positive("dirichlet_delta", p.dirichlet_delta)?;
+    let alpha = ck.positive("alpha", p.alpha)?;
+    let alpha_shape = ck.positive("alpha_shape", p.alpha_shape)?;
+    let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
+
+    let g = raw.grid.clone().unwrap_or_default();
+    let from = ck.finite("grid", "from", g.from)?;
+    let to = ck.finite("grid", "to", g.to)?;
+    let points = ck.int_at_least("grid", "points", g.points, 2, 200)?;
+    if let (Some(a), Some(b)) = (from, to) {
+        if a >= b {
+            return Err(ck.fail("grid", "from", format!("must be below [grid] to, got from = {a}, to = {b}")));
+        }
+    }
+
+    let levels = raw
+        .bands
+        .as_ref()
+        .and_then(|b| b.levels.clone())
+        .unwrap_or_else(|| vec![0.5, 0.9, 0.95]);
+    check_levels(&levels).map_err(|m| ck.fail("bands", "levels", m))?;
+
+    let gate = raw.gate.clone().unwrap_or_default();
+    let max_rhat = gate.max_rhat.unwrap_or(1.01);
+    if !(max_rhat.is_finite() && max_rhat > 1.0) {
+        return Err(ck.fail("gate", "max_rhat", format!("must be a finite number above 1, got {max_rhat}")));
+    }
+    let min_ess = gate.min_ess.unwrap_or(400.0);
+    if !(min_ess.is_finite() && min_ess > 0.0) {
+        return Err(ck.fail("gate", "min_ess", format!("must be a positive finite number, got {min_ess}")));
+    }
+    let min_chains = ck.int_at_least("gate", "min_chains", gate.min_chains, 1, 2)?;
+
+    // Data-dependent defaults. Without a summary (e.g. `template` checks) use unit scale.
+    let (c, lo, hi) = match summary {
+        Some(d) => (d.mean, d.min, d.max),
+        None => (0.0, -2.0, 2.0),
+    };
+    let range = hi - lo;
+    let prior = PriorValues {
+        centre: centre.unwrap_or(c),
+        centre_sd: centre_sd.unwrap_or(range),
+        centre_shrink: centre_shrink.unwrap_or(0.02),
+        var_shape: var_shape.unwrap_or(2.0),
+        var_scale_prior: p.var_scale_prior.unwrap_or(match kernel {
+            Kernel::Location => HyperChoice::Fixed,
+            Kernel::LocationScale => HyperChoice::Gamma,
+        }),
+        var_scale: var_scale.unwrap_or(0.01 * range * range),
+        var_scale_shape: var_scale_shape.unwrap_or(0.2),
+        var_scale_rate: var_scale_rate.unwrap_or(10.0 / (range * range)),
+        dirichlet_delta: dirichlet_delta.unwrap_or(1.0),
+        alpha_prior: p.alpha_prior.unwrap_or(HyperChoice::Gamma),
+        alpha: alpha.unwrap_or(1.0),
+        alpha_shape: alpha_shape.unwrap_or(1.0),
+        alpha_rate: alpha_rate.unwrap_or(1.0),
+    };
+    let pad = 0.1 * range;
+    // Round default ends outward to three significant digits of the range, so the grid
+    // reads as plain numbers (59.2 rather than 59.220000000000006).
+    let step = 10f64.powf((range.log10()).floor() - 2.0);
+    let grid_from = from.unwrap_or(((lo - pad) / step).floor() * step);
+    let grid_to = to.unwrap_or(((hi + pad) / step).ceil() * step);
+    if grid_from >= grid_to {
+        return Err(ck.fail(
+            "grid",
+            if from.is_some() { "from" } else { "to" },
+            format!("leaves an empty grid: from = {grid_from}, to = {grid_to}"),
+        ));
+    }
+
+    Ok(RunConfig {
+        data_file,
+        data_file_text: file,
+        column,
+        units: data.units.clone(),
+        missing: data.missing.unwrap_or(MissingPolicy::Error),
+        kernel,
+        weights,
+        components,
+        prior,
+        chains,
+        warmup,
+        draws,
+        thin,
+        seed,
+        grid_from,
+        grid_to,
+        grid_points: points,
+        levels,
+        max_rhat,
+        min_ess,
+        min_chains,
+    })
+}
+
+/// Checks credible levels: each strictly inside (0, 1), no repeats.
+pub fn check_levels(levels: &[f64]) -> std::result::Result<(), String> {
+    if levels.is_empty() {
+        return Err("must list at least one level".into());
+    }
+    for (i, &l) in levels.iter().enumerate() {
+        if !(l > 0.0 && l < 1.0) {
+            return Err(format!("must lie strictly between 0 and 1, got {l}"));
+        }
+        if levels[..i].contains(&l) {
+            return Err(format!("lists {l} twice"));
+        }
+    }
+    Ok(())
+}
+
+fn fresh_seed() -> u64 {
+    let nanos = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_nanos() as u64)
+        .unwrap_or(0);
+    // Keep it representable as a TOML integer (i64).
+    crate::sampler::rng::splitmix64(nanos) >> 1
+}
+
+impl RunConfig {
+    /// The resolved config as a [`RawConfig`] with every key that affects the run filled in.
+    pub fn to_raw(&self) -> RawConfig {
+        let p = &self.prior;
+        let loc = self.kernel == Kernel::Location;
+        let gamma_b = p.var_scale_prior == HyperChoice::Gamma;
+        let dir = self.weights == WeightsKind::Dirichlet;
+        let gamma_a = p.alpha_prior == HyperChoice::Gamma;
+        RawConfig {
+            data: Some(DataSection {
+                file: Some(self.data_file_text.clone()),
+                column: Some(self.column.clone()),
+                units: self.units.clone(),
+                missing: Some(self.missing),
+            }),
+            model: Some(ModelSection {
+                kernel: Some(self.kernel),
+                weights: Some(self.weights),
+                components: Some(self.components as i64),
+            }),
+            prior: Some(PriorSection {
+                centre: Some(p.centre),
+                centre_sd: loc.then_some(p.centre_sd),
+                centre_shrink: (!loc).then_some(p.centre_shrink),
+                var_shape: Some(p.var_shape),
+                var_scale_prior: Some(p.var_scale_prior),
+                var_scale: (!gamma_b).then_some(p.var_scale),
+                var_scale_shape: gamma_b.then_some(p.var_scale_shape),
+                var_scale_rate: gamma_b.then_some(p.var_scale_rate),
+                dirichlet_delta: dir.then_some(p.dirichlet_delta),
+                alpha_prior: (!dir).then_some(p.alpha_prior),
+                alpha: (!dir && !gamma_a).then_some(p.alpha),
+                alpha_shape: (!dir && gamma_a).then_some(p.alpha_shape),
+                alpha_rate: (!dir && gamma_a).then_some(p.alpha_rate),
+            }),
+            sampler: Some(SamplerSection {
+                chains: Some(self.chains as i64),
+                warmup: Some(self.warmup as i64),
+                draws: Some(self.draws as i64),
+                thin: Some(self.thin as i64),
+                seed: Some(self.seed as i64),
+            }),
+            grid: Some(GridSection {
+                from: Some(self.grid_from),
+                to: Some(self.grid_to),
+                points: Some(self.grid_points as i64),
+            }),
+            bands: Some(BandsSection {
+                levels: Some(self.levels.clone()),
+            }),
+            gate: Some(GateSection {
+                max_rhat: Some(self.max_rhat),
+                min_ess: Some(self.min_ess),
+                min_chains: Some(self.min_chains as i64),
+            }),
+        }
+    }
+
+    /// The resolved config as TOML text, with a header line.
+    pub fn to_toml(&self) -> Result<String> {
+        let body = toml::to_string(&self.to_raw())
+            .map_err(|e| Error::internal(format!("cannot write resolved config: {e}")))?;
+        Ok(format!(
+            "# Resolved by mixband {}: every default filled in. Sampling this file again\n# reproduces the run exactly.\n\n{body}",
+            env!("CARGO_PKG_VERSION")
+        ))
+    }
+}

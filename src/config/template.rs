@@ -1,0 +1,67 @@
+//! The commented starter config printed by `mixband template`; it lists every key.
+//! A unit test parses it, so it cannot drift from what the parser accepts.
+
+pub const TEMPLATE: &str = r#"# mixband run configuration. Every key except [data] file and column is optional;
+# the values shown are the defaults ("from data" ones are computed from the sample and
+# written into RUN/config.toml after a run).
+
+[data]
+file = "measurements.csv"     # CSV with a header row; relative to this file's folder
+column = "value"              # header name of the numeric column
+# units = "mm"                # used in axis labels
+missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
+
+[model]
+kernel = "location-scale"     # "location": one common sd (bandwidth) for all components
+                              # "location-scale": each component its own sd
+weights = "dirichlet"         # "dirichlet" (finite, symmetric) or "stick-breaking" (truncated)
+components = 10               # K; default 10 for dirichlet, 25 for stick-breaking
+
+[prior]                       # in data units; see docs/model.md for each full conditional
+# centre = 0.0                # m, centre of component means (default: sample mean)
+# centre_sd = 1.0             # s, sd of component means, location kernel (default: data range)
+# centre_shrink = 0.02        # kappa: mean_k | var_k ~ N(m, var_k / kappa), location-scale kernel
+# var_shape = 2.0             # a: var ~ Inverse-Gamma(a, b)
+# var_scale_prior = "gamma"   # "fixed" or "gamma" (default: gamma for location-scale, fixed for location)
+# var_scale = 1.0             # b when fixed (default: (range/10)^2)
+# var_scale_shape = 0.2       # b ~ Gamma(shape, rate) when var_scale_prior = "gamma"
+# var_scale_rate = 1.0        # (default: 10 / range^2)
+# dirichlet_delta = 1.0       # delta of the symmetric Dirichlet weights
+# alpha_prior = "gamma"       # stick-breaking concentration: "fixed" or "gamma"
+# alpha = 1.0                 # alpha when fixed
+# alpha_shape = 1.0           # alpha ~ Gamma(shape, rate)
+# alpha_rate = 1.0
+
+[sampler]
+chains = 4
+warmup = 1000                 # sweeps discarded per chain
+draws = 1000                  # kept draws per chain
+thin = 1                      # keep every thin-th sweep after warm-up
+# seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
+
+[grid]                        # where the density is evaluated
+# from = 0.0                  # default: data minimum - 10% of the range
+# to = 1.0                    # default: data maximum + 10% of the range
+points = 200
+
+[bands]
+levels = [0.5, 0.9, 0.95]     # central credible levels, each strictly between 0 and 1
+
+[gate]                        # convergence gate (Vehtari et al. 2021 recommendations)
+max_rhat = 1.01
+min_ess = 400
+min_chains = 2
+"#;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn template_parses_and_resolves() {
+        let raw = crate::config::parse_config_str(TEMPLATE, "template").unwrap();
+        let cfg = crate::config::resolve(&raw, TEMPLATE, "template", std::path::Path::new("."), None).unwrap();
+        assert_eq!(cfg.components, 10);
+        assert_eq!(cfg.levels, vec![0.5, 0.9, 0.95]);
+    }
+}

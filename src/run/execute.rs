@@ -1,0 +1,264 @@
+//! Sampling every chain of a run into its directory, in parallel threads.
+//!
+//! Chain i always uses the streams of (seed, i), so the draws do not depend on the number
+//! of threads or on which chains run beside it. A fresh run refuses to write into a
+//! non-empty directory unless forced; resume and extend continue from the checkpoints.
+
+use std::path::Path;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::Mutex;
+use std::time::Instant;
+
+use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
+
+use super::prepare::Prepared;
+use crate::error::{Error, Result};
+use crate::sampler::rng::StreamKey;
+use crate::sampler::{initial_state, run_chain, ChainPlan, ChainStop, Checkpoint};
+use crate::store::{
+    read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
+};
+
+/// What kind of sampling call this is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Mode {
+    /// A new run; `force` replaces an earlier mixband run in the same directory.
+    Fresh { force: bool },
+    /// Continue an incomplete run to its configured length.
+    Resume,
+}
+
+/// How to run.
+#[derive(Debug, Clone, Copy)]
+pub struct ExecOptions<'a> {
+    /// Worker threads (at least 1).
+    pub threads: usize,
+    pub quiet: bool,
+    /// Raised by the SIGINT handler; chains stop at the end of the current sweep.
+    pub stop: &'a AtomicBool,
+}
+
+/// How sampling ended.
+#[derive(Debug, Clone)]
+pub struct RunOutcome {
+    pub manifest: Manifest,
+    pub interrupted: bool,
+}
+
+/// Prepares the directory for a fresh run.
+fn claim_directory(dir: &Path, force: bool) -> Result<()> {
+    if dir.exists() {
+        let non_empty = std::fs::read_dir(dir)
+            .map_err(|e| Error::io(dir, e))?
+            .next()
+            .is_some();
+        if non_empty {
+            if !force {
+                return Err(Error::input(format!(
+                    "{} exists and is not empty; choose another --out or pass --force to replace an earlier run",
+                    dir.display()
+                )));
+            }
+            if !RunLayout::new(dir).manifest().exists() {
+                return Err(Error::input(format!(
+                    "{} is not a mixband run directory (no manifest.json); refusing to replace it even with --force",
+                    dir.display()
+                )));
+            }
+            std::fs::remove_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+        }
+    }
+    let layout = RunLayout::new(dir);
+    for d in [layout.root.clone(), layout.draws_dir(), layout.state_dir()] {
+        std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
+    }
+    Ok(())
+}
+
+/// Samples the run described by `prep` into `dir`. `extra_files` (name, bytes) are
+/// written into a fresh run directory beside the config (the demo's data).
+pub fn execute(
+    prep: &Prepared,
+    dir: &Path,
+    mode: Mode,
+    opts: ExecOptions<'_>,
+    extra_files: &[(&str, &[u8])],
+) -> Result<RunOutcome> {
+    let cfg = &prep.config;
+    let layout = RunLayout::new(dir);
+    let plan = ChainPlan {
+        warmup: cfg.warmup as u64,
+        draws: cfg.draws as u64,
+        thin: cfg.thin as u64,
+    };
+    let config_toml = cfg.to_toml()?;
+    let config_json = serde_json::to_value(cfg.to_raw())
+        .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
+    let mut manifest = match mode {
+        Mode::Fresh { force } => {
+            claim_directory(dir, force)?;
+            for (name, bytes) in extra_files {
+                write_atomic(&layout.root.join(name), bytes)?;
+            }
+            Manifest {
+                tool: "mixband".into(),
+                version: env!("CARGO_PKG_VERSION").into(),
+                status: RunStatus::Running,
+                seed: cfg.seed,
+                data: prep.record.clone(),
+                config: config_json,
+                chains: (1..=cfg.chains as u64)
+                    .map(|id| ChainRecord {
+                        id,
+                        sweeps_done: 0,
+                        sweeps_planned: plan.total_sweeps(),
+                        draws_written: 0,
+                        seconds: 0.0,
+                    })
+                    .collect(),
+                started_unix: std::time::SystemTime::now()
+                    .duration_since(std::time::UNIX_EPOCH)
+                    .map(|d| d.as_secs())
+                    .unwrap_or(0),
+            }
+        }
+        Mode::Resume => {
+            let mut m = Manifest::read(&layout.manifest())?;
+            if m.data.sha256 != prep.record.sha256 {
+                return Err(Error::input(format!(
+                    "the data file {} has changed since the run started (SHA-256 {} then, {} now); refusing to continue",
+                    prep.record.file, m.data.sha256, prep.record.sha256
+                )));
+            }
+            m.config = config_json;
+            m.status = RunStatus::Running;
+            for c in &mut m.chains {
+                c.sweeps_planned = plan.total_sweeps();
+            }
+            m
+        }
+    };
+    write_atomic(&layout.config(), config_toml.as_bytes())?;
+    manifest.write(&layout.manifest())?;
+
+    let units = Units {
+        centre: prep.data.centre,
+        scale: prep.data.scale,
+        n: prep.data.z.len(),
+    };
+    let x = &prep.data.z;
+    let multi = MultiProgress::with_draw_target(if opts.quiet {
+        ProgressDrawTarget::hidden()
+    } else {
+        ProgressDrawTarget::stderr()
+    });
+    let style = ProgressStyle::with_template("chain {prefix} {bar:40} {pos}/{len} sweeps {elapsed_precise} eta {eta}")
+        .unwrap_or_else(|_| ProgressStyle::default_bar());
+
+    let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
+    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
+    let next = AtomicUsize::new(0);
+    let workers = opts.threads.max(1).min(jobs.len().max(1));
+    let chains = manifest.chains.clone();
+    std::thread::scope(|s| {
+        for _ in 0..workers {
+            s.spawn(|| loop {
+                let i = next.fetch_add(1, Ordering::SeqCst);
+                if i >= jobs.len() {
+                    break;
+                }
+                let rec = &chains[i];
+                let bar = multi.add(ProgressBar::new(plan.total_sweeps()));
+                bar.set_style(style.clone());
+                bar.set_prefix(rec.id.to_string());
+                let t0 = Instant::now();
+                let r = run_one(prep, &layout, rec.id, plan, units, x, bar.clone(), opts.stop, mode)
+                    .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
+                bar.finish_and_clear();
+                if let Ok(mut slot) = results[i].lock() {
+                    *slot = Some(r);
+                }
+            });
+        }
+    });
+
+    let mut interrupted = false;
+    let mut first_error = None;
+    for (i, slot) in results.into_iter().enumerate() {
+        let r = slot
+            .into_inner()
+            .map_err(|_| Error::internal("a chain thread panicked"))?
+            .unwrap_or_else(|| Err(Error::internal("a chain did not run")));
+        match r {
+            Ok((stop, written, secs)) => {
+                let c = &mut manifest.chains[i];
+                c.draws_written = written;
+                c.seconds += secs;
+                c.sweeps_done = match stop {
+                    ChainStop::Finished => plan.total_sweeps(),
+                    ChainStop::Interrupted { sweeps_done } => {
+                        interrupted = true;
+                        sweeps_done
+                    }
+                };
+            }
+            Err(e) => {
+                if let Ok(cp) = read_checkpoint(&layout.chain_state(manifest.chains[i].id)) {
+                    manifest.chains[i].sweeps_done = cp.checkpoint.sweeps_done;
+                    manifest.chains[i].draws_written = cp.draws_written;
+                }
+                first_error.get_or_insert(e);
+            }
+        }
+    }
+    let done = manifest.chains.iter().all(|c| c.sweeps_done == plan.total_sweeps());
+    manifest.status = if done { RunStatus::Complete } else { RunStatus::Incomplete };
+    manifest.write(&layout.manifest())?;
+    if let Some(e) = first_error {
+        return Err(e);
+    }
+    Ok(RunOutcome { manifest, interrupted })
+}
+
+#[allow(clippy::too_many_arguments)]
+fn run_one(
+    prep: &Prepared,
+    layout: &RunLayout,
+    id: u64,
+    plan: ChainPlan,
+    units: Units,
+    x: &[f64],
+    bar: ProgressBar,
+    stop: &AtomicBool,
+    mode: Mode,
+) -> Result<(ChainStop, u64)> {
+    let key = StreamKey::new(prep.config.seed, id);
+    let draws_path = layout.chain_draws(id);
+    let state_path = layout.chain_state(id);
+    let (mut writer, start) = match mode {
+        Mode::Fresh { .. } => {
+            let w = ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
+            let start = Checkpoint {
+                sweeps_done: 0,
+                state: initial_state(x, &prep.prior, &key),
+                pending_occupied: None,
+            };
+            (w, start)
+        }
+        Mode::Resume => {
+            let stored = read_checkpoint(&state_path)?;
+            if stored.chain != id || stored.checkpoint.state.k() != prep.prior.components {
+                return Err(Error::input(format!(
+                    "{}: checkpoint does not match chain {id} of this run",
+                    state_path.display()
+                )));
+            }
+            let w = ChainWriter::reopen(&draws_path, &state_path, &stored, units)?;
+            (w, stored.checkpoint)
+        }
+    };
+    bar.set_position(start.sweeps_done);
+    writer = writer.with_progress(bar);
+    let stop_kind = run_chain(x, &prep.prior, &key, plan, start, &mut writer, stop)?;
+    Ok((stop_kind, writer.draws_written()))
+}

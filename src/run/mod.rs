@@ -1,0 +1,10 @@
+//! Running the whole job: prepare (config + data), sample every chain into the store,
+//! then summarise. The command line is a thin layer over these functions.
+
+mod execute;
+mod outputs;
+mod prepare;
+
+pub use execute::{execute, ExecOptions, Mode, RunOutcome};
+pub use outputs::{write_bands, BandsFile};
+pub use prepare::{sha256_hex, Prepared};

@@ -1,0 +1,20 @@
+//! The Gibbs sampler: one sweep updates allocations, then weights, then component
+//! parameters, then hyperparameters; [`chain::run_chain`] strings sweeps into a chain.
+//!
+//! Every random number comes from a stream keyed by (seed, chain, sweep, block), see
+//! [`rng`], so a chain is a function of the seed and its id alone, and a stored state
+//! continues it exactly.
+
+pub mod allocate;
+pub mod chain;
+mod components;
+mod hyper;
+mod init;
+pub mod rng;
+mod sweep;
+mod weights;
+
+pub use allocate::{ComponentTable, SuffStats};
+pub use chain::{run_chain, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};
+pub use init::initial_state;
+pub use sweep::{sweep, SweepOutcome};

@@ -1,0 +1,75 @@
+//! `manifest.json`: what ran (tool version, resolved config, seed), on which data (path,
+//! SHA-256, n), and how far each chain got, with its timing.
+
+use std::path::Path;
+
+use serde::{Deserialize, Serialize};
+
+use super::atomic::write_atomic;
+use crate::error::{Error, Result};
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RunStatus {
+    /// Sampling is under way, or the process died while it was.
+    Running,
+    /// Stopped before every chain reached its configured length; `mixband resume` continues.
+    Incomplete,
+    Complete,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct DataRecord {
+    /// Absolute path of the data file when the run was made.
+    pub file: String,
+    pub column: String,
+    pub sha256: String,
+    pub n: usize,
+    pub dropped: usize,
+    pub mean: f64,
+    pub sd: f64,
+    pub min: f64,
+    pub max: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ChainRecord {
+    pub id: u64,
+    pub sweeps_done: u64,
+    pub sweeps_planned: u64,
+    pub draws_written: u64,
+    pub seconds: f64,
+}
+
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Manifest {
+    pub tool: String,
+    pub version: String,
+    pub status: RunStatus,
+    pub seed: u64,
+    pub data: DataRecord,
+    /// The resolved config (the same content as config.toml).
+    pub config: serde_json::Value,
+    pub chains: Vec<ChainRecord>,
+    /// Seconds since the Unix epoch when the run was started.
+    pub started_unix: u64,
+}
+
+impl Manifest {
+    pub fn write(&self, path: &Path) -> Result<()> {
+        let mut json = serde_json::to_vec_pretty(self)
+            .map_err(|e| Error::internal(format!("cannot encode manifest: {e}")))?;
+        json.push(b'\n');
+        write_atomic(path, &json)
+    }
+
+    pub fn read(path: &Path) -> Result<Manifest> {
+        let text = std::fs::read_to_string(path)
+            .map_err(|e| Error::input(format!("cannot read {}: {e}; is this a mixband run directory?", path.display())))?;
+        serde_json::from_str(&text).map_err(|e| Error::input(format!("{}: unreadable manifest: {e}", path.display())))
+    }
+
+    pub fn chain_ids(&self) -> Vec<u64> {
+        self.chains.iter().map(|c| c.id).collect()
+    }
+}

@@ -1,0 +1,78 @@
+//! Pointwise posterior summaries of the density: mean (the posterior predictive density),
+//! median and equal-tailed credible bands at each level, written as CSV and JSON.
+
+use serde::Serialize;
+
+use super::density::DensityDraws;
+use super::quantile::quantile_sorted;
+use crate::numfmt::fmt_f64;
+
+/// Pointwise summaries over draws.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Bands {
+    pub x: Vec<f64>,
+    pub mean: Vec<f64>,
+    pub median: Vec<f64>,
+    pub levels: Vec<f64>,
+    /// lower[l][g], upper[l][g] for level `levels[l]`.
+    pub lower: Vec<Vec<f64>>,
+    pub upper: Vec<Vec<f64>>,
+    pub draws_used: usize,
+}
+
+/// Column suffix for a level: 0.95 → "95", 0.975 → "97.5".
+pub fn level_label(level: f64) -> String {
+    let pct = (level * 100.0 * 1e6).round() / 1e6;
+    format!("{pct}")
+}
+
+impl Bands {
+    pub fn new(dens: &DensityDraws, levels: &[f64]) -> Self {
+        let g = dens.grid.len();
+        let mut b = Bands {
+            x: dens.grid.clone(),
+            mean: Vec::with_capacity(g),
+            median: Vec::with_capacity(g),
+            levels: levels.to_vec(),
+            lower: vec![Vec::with_capacity(g); levels.len()],
+            upper: vec![Vec::with_capacity(g); levels.len()],
+            draws_used: dens.chains * dens.draws,
+        };
+        for i in 0..g {
+            let mut v = dens.pooled(i);
+            b.mean.push(v.iter().sum::<f64>() / v.len() as f64);
+            v.sort_by(f64::total_cmp);
+            b.median.push(quantile_sorted(&v, 0.5));
+            for (l, &level) in levels.iter().enumerate() {
+                b.lower[l].push(quantile_sorted(&v, 0.5 * (1.0 - level)));
+                b.upper[l].push(quantile_sorted(&v, 0.5 * (1.0 + level)));
+            }
+        }
+        b
+    }
+
+    /// CSV text: `x, mean, median`, then `lower_<L>, upper_<L>` per level.
+    pub fn to_csv(&self) -> String {
+        let mut s = String::from("x,mean,median");
+        for &l in &self.levels {
+            let lab = level_label(l);
+            s.push_str(&format!(",lower_{lab},upper_{lab}"));
+        }
+        s.push('\n');
+        for i in 0..self.x.len() {
+            s.push_str(&fmt_f64(self.x[i]));
+            s.push(',');
+            s.push_str(&fmt_f64(self.mean[i]));
+            s.push(',');
+            s.push_str(&fmt_f64(self.median[i]));
+            for l in 0..self.levels.len() {
+                s.push(',');
+                s.push_str(&fmt_f64(self.lower[l][i]));
+                s.push(',');
+                s.push_str(&fmt_f64(self.upper[l][i]));
+            }
+            s.push('\n');
+        }
+        s
+    }
+}

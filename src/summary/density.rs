@@ -1,0 +1,58 @@
+//! The mixture density of each stored draw on a grid, on the data scale.
+
+use crate::dist::LN_SQRT_2PI;
+use crate::store::{DrawRow, RunDraws};
+
+/// f(x) = Σ_k w_k N(x; μ_k, σ_k²) for one draw.
+pub fn mixture_density(row: &DrawRow, x: f64) -> f64 {
+    let mut f = 0.0;
+    for j in 0..row.weight.len() {
+        let z = (x - row.mean[j]) / row.sd[j];
+        f += (row.weight[j].ln() - row.sd[j].ln() - LN_SQRT_2PI - 0.5 * z * z).exp();
+    }
+    f
+}
+
+/// Densities of every draw on a grid: `values[(c * draws + d) * grid + g]`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct DensityDraws {
+    pub grid: Vec<f64>,
+    pub chains: usize,
+    /// Draws per chain (chains are cut to the shortest).
+    pub draws: usize,
+    pub values: Vec<f64>,
+}
+
+impl DensityDraws {
+    /// Evaluates every draw of `run` (cut to the shortest chain) on `grid`.
+    pub fn new(run: &RunDraws, grid: &[f64]) -> Self {
+        let draws = run.min_len();
+        let g = grid.len();
+        let mut values = Vec::with_capacity(run.chains.len() * draws * g);
+        for c in &run.chains {
+            for row in &c.rows[..draws] {
+                values.extend(grid.iter().map(|&x| mixture_density(row, x)));
+            }
+        }
+        DensityDraws {
+            grid: grid.to_vec(),
+            chains: run.chains.len(),
+            draws,
+            values,
+        }
+    }
+
+    /// The density at grid point `g` for every draw of chain `c`.
+    pub fn series(&self, c: usize, g: usize) -> Vec<f64> {
+        let n = self.grid.len();
+        (0..self.draws)
+            .map(|d| self.values[(c * self.draws + d) * n + g])
+            .collect()
+    }
+
+    /// The density at grid point `g` for every draw of every chain.
+    pub fn pooled(&self, g: usize) -> Vec<f64> {
+        let n = self.grid.len();
+        self.values.iter().skip(g).step_by(n).copied().collect()
+    }
+}
