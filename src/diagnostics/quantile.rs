@@ -37,7 +37,9 @@ pub(crate) fn quantile_type7_sorted(sorted: &[f64], p: f64) -> f64 {
     }
     let nf = n as f64;
     // scipy: m = alphap + p * (1 - alphap - betap) with alphap = betap = 1.
-    let m = 1.0 + p * (1.0 - 1.0 - 1.0);
+    const ALPHAP: f64 = 1.0;
+    const BETAP: f64 = 1.0;
+    let m = ALPHAP + p * (1.0 - ALPHAP - BETAP);
     let aleph = nf * p + m;
     let k = aleph.clamp(1.0, nf - 1.0).floor();
     let gamma = (aleph - k).clamp(0.0, 1.0);

@@ -5,6 +5,7 @@ use serde::{Deserialize, Serialize};
 
 use super::draws::{row_is_constant, Prepared};
 use super::error::DiagnosticsError;
+use super::rank::rank_normalize;
 use super::{ess, mcse, rhat};
 
 /// How the draws of a quantity vary, decided before any diagnostic is read.
@@ -86,13 +87,17 @@ pub fn scalar_diagnostics(chains: &[&[f64]]) -> Result<ScalarDiagnostics, Diagno
     let ess_q05 = ess::of_quantile(&p, ess::TAIL_PROBS.0)?;
     let ess_q95 = ess::of_quantile(&p, ess::TAIL_PROBS.1)?;
     let ess_mean = ess::of_mean(&p)?;
+    // The rank-normalised split draws feed both the bulk R-hat and the bulk ESS.
+    let z = rank_normalize(&p.split);
     let sum: f64 = p.chains.iter().flatten().sum();
     Ok(ScalarDiagnostics {
         mean: sum / p.total_draws() as f64,
         sd: mcse::sd(&p),
-        rhat: rhat::rank_bulk(&p)?.max(rhat::rank_folded(&p)?),
+        rhat: rhat::rhat_rows(&z)?.max(rhat::rank_folded(&p)?),
         rhat_split: rhat::split(&p)?,
-        ess_bulk: ess::bulk(&p)?,
+        ess_bulk: ess::ess_rows(&z).ok_or(DiagnosticsError::Overflow {
+            quantity: "bulk ESS",
+        })?,
         ess_tail: ess_q05.min(ess_q95),
         mcse_mean: mcse::of_mean(&p, ess_mean),
         mcse_q05: mcse::of_quantile(&p, ess::TAIL_PROBS.0, ess_q05),
