@@ -27,7 +27,11 @@ fn data_csv() -> String {
     let mut s = String::from("value\n");
     for i in 0..150 {
         let z: f64 = rng.sample(StandardNormal);
-        let v = if i % 3 == 0 { 30.0 + 2.0 * z } else { 22.0 + 1.5 * z };
+        let v = if i % 3 == 0 {
+            30.0 + 2.0 * z
+        } else {
+            22.0 + 1.5 * z
+        };
         s.push_str(&format!("{v}\n"));
     }
     s
@@ -95,9 +99,15 @@ fn base() -> &'static Path {
 
 fn assert_same_run(a: &Path, b: &Path, chains: usize) {
     for c in 1..=chains {
-        assert!(chain_csv(a, c) == chain_csv(b, c), "draws/chain-{c}.csv differ between {a:?} and {b:?}");
+        assert!(
+            chain_csv(a, c) == chain_csv(b, c),
+            "draws/chain-{c}.csv differ between {a:?} and {b:?}"
+        );
     }
-    assert!(read(a.join("bands.csv")) == read(b.join("bands.csv")), "bands.csv differ between {a:?} and {b:?}");
+    assert!(
+        read(a.join("bands.csv")) == read(b.join("bands.csv")),
+        "bands.csv differ between {a:?} and {b:?}"
+    );
 }
 
 #[test]
@@ -119,7 +129,10 @@ fn chain_two_does_not_depend_on_the_number_of_chains() {
     let run = dir.join("run");
     sample(&dir.join("run.toml"), &run, 2);
     assert!(chain_csv(a, 1) == chain_csv(&run, 1));
-    assert!(chain_csv(a, 2) == chain_csv(&run, 2), "chain 2 differs between a 4-chain and a 2-chain run");
+    assert!(
+        chain_csv(a, 2) == chain_csv(&run, 2),
+        "chain 2 differs between a 4-chain and a 2-chain run"
+    );
 }
 
 #[test]
@@ -132,7 +145,12 @@ fn resolved_config_reproduces_the_run() {
 
 fn csv_rows(text: &str) -> (Vec<String>, Vec<Vec<f64>>) {
     let mut lines = text.lines();
-    let head = lines.next().unwrap().split(',').map(str::to_string).collect();
+    let head = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .map(str::to_string)
+        .collect();
     let rows = lines
         .map(|l| l.split(',').map(|c| c.parse::<f64>().unwrap()).collect())
         .collect();
@@ -145,12 +163,18 @@ fn stored_weights_sum_to_one() {
     for c in 1..=4 {
         let text = String::from_utf8(chain_csv(a, c)).unwrap();
         let (head, rows) = csv_rows(&text);
-        let wcols: Vec<usize> = (0..head.len()).filter(|&i| head[i].starts_with("weight_")).collect();
+        let wcols: Vec<usize> = (0..head.len())
+            .filter(|&i| head[i].starts_with("weight_"))
+            .collect();
         assert_eq!(wcols.len(), 6);
         assert_eq!(rows.len(), 200);
         for r in &rows {
             let s: f64 = wcols.iter().map(|&i| r[i]).sum();
-            assert!((s - 1.0).abs() < 1e-12, "chain {c}, iteration {}: weights sum to {s}", r[0]);
+            assert!(
+                (s - 1.0).abs() < 1e-12,
+                "chain {c}, iteration {}: weights sum to {s}",
+                r[0]
+            );
         }
     }
 }
@@ -159,17 +183,30 @@ fn stored_weights_sum_to_one() {
 fn bands_are_ordered_at_every_grid_point() {
     let text = String::from_utf8(read(base().join("bands.csv"))).unwrap();
     let (head, rows) = csv_rows(&text);
-    let col = |name: &str| head.iter().position(|h| h == name).unwrap_or_else(|| panic!("no column {name}"));
+    let col = |name: &str| {
+        head.iter()
+            .position(|h| h == name)
+            .unwrap_or_else(|| panic!("no column {name}"))
+    };
     let (median, levels) = (col("median"), ["50", "90", "95"]);
     assert_eq!(rows.len(), 60);
     for r in &rows {
         let mut prev: Option<(f64, f64)> = None;
         for l in levels {
             let (lo, hi) = (r[col(&format!("lower_{l}"))], r[col(&format!("upper_{l}"))]);
-            assert!(lo <= r[median] && r[median] <= hi, "x = {}: level {l}: {lo} <= {} <= {hi} fails", r[0], r[median]);
+            assert!(
+                lo <= r[median] && r[median] <= hi,
+                "x = {}: level {l}: {lo} <= {} <= {hi} fails",
+                r[0],
+                r[median]
+            );
             assert!(lo >= 0.0);
             if let Some((plo, phi)) = prev {
-                assert!(lo <= plo && hi >= phi, "x = {}: band {l} does not contain the narrower band", r[0]);
+                assert!(
+                    lo <= plo && hi >= phi,
+                    "x = {}: band {l} does not contain the narrower band",
+                    r[0]
+                );
             }
             prev = Some((lo, hi));
         }
@@ -209,6 +246,12 @@ fn posterior_mean_density_integrates_to_one() {
     let text = String::from_utf8(read(copy.join("bands.csv"))).unwrap();
     let (_, rows) = csv_rows(&text);
     assert_eq!(rows.len(), 8501);
-    let integral: f64 = rows.windows(2).map(|w| 0.5 * (w[1][0] - w[0][0]) * (w[0][1] + w[1][1])).sum();
-    assert!((integral - 1.0).abs() < 0.01, "posterior mean density integrates to {integral}");
+    let integral: f64 = rows
+        .windows(2)
+        .map(|w| 0.5 * (w[1][0] - w[0][0]) * (w[0][1] + w[1][1]))
+        .sum();
+    assert!(
+        (integral - 1.0).abs() < 0.01,
+        "posterior mean density integrates to {integral}"
+    );
 }

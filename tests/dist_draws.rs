@@ -52,10 +52,17 @@ fn log_gamma_passes_kolmogorov_smirnov() {
     let crit = kolmogorov_critical(0.01 / SHAPES.len() as f64) / (KS_DRAWS as f64).sqrt();
     for (i, &a) in SHAPES.iter().enumerate() {
         let d = ks_log_gamma(a, a, 1000 + i as u64);
-        assert!(d < crit, "log_gamma({a}): KS D = {d:.5} >= critical {crit:.5}");
+        assert!(
+            d < crit,
+            "log_gamma({a}): KS D = {d:.5} >= critical {crit:.5}"
+        );
         // Power: the same draws against a shape 10% larger are rejected.
         let d_wrong = ks_log_gamma(a, 1.1 * a, 1000 + i as u64);
-        assert!(d_wrong > crit, "log_gamma({a}) vs shape {}: D = {d_wrong:.5} not rejected", 1.1 * a);
+        assert!(
+            d_wrong > crit,
+            "log_gamma({a}) vs shape {}: D = {d_wrong:.5} not rejected",
+            1.1 * a
+        );
     }
 }
 
@@ -79,7 +86,10 @@ fn sparse_dirichlet_log_weights_are_finite_and_unbiased() {
     for _ in 0..DRAWS {
         log_dirichlet(&alpha, &mut rng, &mut out);
         for (j, &l) in out.iter().enumerate() {
-            assert!(!l.is_nan() && l != f64::NEG_INFINITY && l <= 1e-15, "log weight {l}");
+            assert!(
+                !l.is_nan() && l != f64::NEG_INFINITY && l <= 1e-15,
+                "log weight {l}"
+            );
             if l < f64::MIN_POSITIVE.ln() {
                 below_min_positive += 1;
             }
@@ -105,14 +115,24 @@ fn sparse_dirichlet_log_weights_are_finite_and_unbiased() {
 #[test]
 fn log_beta_pairs_match_beta_moments() {
     const DRAWS: usize = 50_000;
-    let cases = [(1.0, 0.05), (1.0, 3.0), (0.5, 0.5), (2.5, 150.0), (0.01, 1.0), (30.0, 0.2)];
+    let cases = [
+        (1.0, 0.05),
+        (1.0, 3.0),
+        (0.5, 0.5),
+        (2.5, 150.0),
+        (0.01, 1.0),
+        (30.0, 0.2),
+    ];
     let crit = bonferroni_z(0.001, 2 * cases.len());
     for (i, &(a, b)) in cases.iter().enumerate() {
         let mut rng = ChaCha8Rng::seed_from_u64(300 + i as u64);
         let v: Vec<f64> = (0..DRAWS)
             .map(|_| {
                 let (lv, l1mv) = log_beta(a, b, &mut rng);
-                assert!(lv.is_finite() && l1mv.is_finite() && lv <= 0.0 && l1mv <= 0.0, "({lv}, {l1mv})");
+                assert!(
+                    lv.is_finite() && l1mv.is_finite() && lv <= 0.0 && l1mv <= 0.0,
+                    "({lv}, {l1mv})"
+                );
                 let sum = lv.exp() + l1mv.exp();
                 assert!((sum - 1.0).abs() < 1e-12, "v + (1 - v) = {sum}");
                 lv.exp()
@@ -121,14 +141,21 @@ fn log_beta_pairs_match_beta_moments() {
         let mu = a / (a + b);
         let sigma2 = a * b / ((a + b) * (a + b) * (a + b + 1.0));
         let z_mean = (mean(&v) - mu) / (sigma2 / DRAWS as f64).sqrt();
-        assert!(z_mean.abs() < crit, "Beta({a}, {b}): mean {} vs {mu}, z = {z_mean:.2}", mean(&v));
+        assert!(
+            z_mean.abs() < crit,
+            "Beta({a}, {b}): mean {} vs {mu}, z = {z_mean:.2}",
+            mean(&v)
+        );
         // SE of the sample variance: sqrt((m4 − s⁴)/n) with m4 the sample fourth central
         // moment (large-sample formula).
         let m = mean(&v);
         let m4 = v.iter().map(|x| (x - m).powi(4)).sum::<f64>() / DRAWS as f64;
         let s2 = var(&v);
         let z_var = (s2 - sigma2) / ((m4 - s2 * s2) / DRAWS as f64).sqrt();
-        assert!(z_var.abs() < crit, "Beta({a}, {b}): variance {s2} vs {sigma2}, z = {z_var:.2}");
+        assert!(
+            z_var.abs() < crit,
+            "Beta({a}, {b}): variance {s2} vs {sigma2}, z = {z_var:.2}"
+        );
     }
 }
 
@@ -145,6 +172,10 @@ fn inv_gamma_mean_is_scale_over_shape_minus_one() {
         let mu = b / (a - 1.0);
         let sd = b / ((a - 1.0) * (a - 2.0).sqrt());
         let z = (mean(&x) - mu) / (sd / (DRAWS as f64).sqrt());
-        assert!(z.abs() < crit, "IG({a}, {b}): mean {} vs {mu}, z = {z:.2}", mean(&x));
+        assert!(
+            z.abs() < crit,
+            "IG({a}, {b}): mean {} vs {mu}, z = {z:.2}",
+            mean(&x)
+        );
     }
 }

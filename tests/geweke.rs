@@ -11,13 +11,15 @@
 //! The successive chain is autocorrelated, so its standard error comes from batch means;
 //! each mean difference gets a z-test, Bonferroni-corrected over all test functions of a
 //! kernel × weight combination at family-wise level 0.001 (fixed seeds, so a pass is
-//! reproducible). A sweep with the variance conditional's shape off by one half must be
-//! rejected by the same test, which shows the test has power.
+//! reproducible). Sweeps with one conditional deliberately wrong (the variance shape off by
+//! one half; the stick-breaking tail count off by one) must be rejected by the same test,
+//! which shows the test has power.
 
 mod common;
 
 use common::{batch_means_se, bonferroni_z, mean, var};
 use mixband::config::{Kernel, WeightsKind};
+use mixband::dist::log_beta;
 use mixband::model::{draw_from_prior, simulate_data, Concentration, Prior, State, VarScale};
 use mixband::sampler::allocate::{allocate, loglik, ComponentTable};
 use mixband::sampler::components::update_components;
@@ -44,10 +46,16 @@ fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
         centre_sd: 1.5,
         centre_shrink: 0.5,
         var_shape: 4.0,
-        var_scale: VarScale::Gamma { shape: 3.0, rate: 2.0 },
+        var_scale: VarScale::Gamma {
+            shape: 3.0,
+            rate: 2.0,
+        },
         concentration: match weights {
             WeightsKind::Dirichlet => Concentration::Fixed(1.0),
-            WeightsKind::StickBreaking => Concentration::Gamma { shape: 2.0, rate: 2.0 },
+            WeightsKind::StickBreaking => Concentration::Gamma {
+                shape: 2.0,
+                rate: 2.0,
+            },
         },
     }
 }
@@ -62,6 +70,9 @@ enum Kernelised {
     /// The rebuilt sweep with the variance conditional's shape a + n/2 replaced by
     /// a + (n + 1)/2: a plausible off-by-one-observation bug.
     WrongVarShape,
+    /// The rebuilt sweep with stick-breaking v_k | z ~ Beta(1 + n_k, α + Σ_{j≥k} n_j): the
+    /// tail count wrongly includes component k itself.
+    WrongStickTail,
 }
 
 fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, t: u64) {
@@ -72,7 +83,11 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
     // Same streams and order as src/sampler/sweep.rs.
     let alloc = allocate(x, &ComponentTable::new(state), key, t);
     let mut rng = key.sweep_rng(t);
-    update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
+    if how == Kernelised::WrongStickTail {
+        wrong_sticks(&alloc.stats.n, state, &mut rng);
+    } else {
+        update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
+    }
     if how == Kernelised::WrongVarShape {
         let wrong = Prior {
             var_shape: prior.var_shape + 0.5,
@@ -86,10 +101,33 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
     update_concentration(prior, state, &mut rng);
 }
 
+/// The stick-breaking weight update of src/sampler/weights.rs with the off-by-one tail.
+fn wrong_sticks(n: &[u64], state: &mut State, rng: &mut ChaCha8Rng) {
+    let k = n.len();
+    let mut tail: u64 = n.iter().sum();
+    for (j, &nj) in n.iter().enumerate().take(k - 1) {
+        let (lv, l1mv) = log_beta(1.0 + nj as f64, state.concentration + tail as f64, rng);
+        tail -= nj;
+        state.log_v[j] = lv;
+        state.log_1mv[j] = l1mv;
+    }
+    state.log_v[k - 1] = 0.0;
+    state.log_1mv[k - 1] = 0.0;
+    state.weights_from_sticks();
+}
+
 /// Label-invariant test functions g(θ, x), with names for messages.
 fn test_functions(prior: &Prior) -> Vec<&'static str> {
     let mut names = vec![
-        "f(-1)", "f(0)", "f(1.2)", "sum w mu", "sum w var", "sum w mu^2", "sum w^2", "mean x", "mean x^2",
+        "f(-1)",
+        "f(0)",
+        "f(1.2)",
+        "sum w mu",
+        "sum w var",
+        "sum w mu^2",
+        "sum w^2",
+        "mean x",
+        "mean x^2",
         "loglik",
     ];
     if matches!(prior.var_scale, VarScale::Gamma { .. }) {
@@ -216,7 +254,12 @@ fn geweke_location_scale_dirichlet() {
 
 #[test]
 fn geweke_location_scale_stick_breaking() {
-    check_combo(Kernel::LocationScale, WeightsKind::StickBreaking, M_FAST, 14);
+    check_combo(
+        Kernel::LocationScale,
+        WeightsKind::StickBreaking,
+        M_FAST,
+        14,
+    );
 }
 
 /// The fault-injection sweep differs from production only in the injected fault: with all
@@ -241,6 +284,24 @@ fn geweke_rejects_wrong_variance_shape() {
         assert!(
             worst > crit,
             "{kernel:?} x {weights:?}: the wrong variance shape went undetected (max |z| {worst:.2} < {crit:.2}): {zs:?}"
+        );
+    }
+}
+
+/// A stick-breaking weight conditional whose tail count includes the component itself is
+/// rejected.
+#[test]
+fn geweke_rejects_wrong_stick_tail() {
+    for (i, kernel) in [Kernel::Location, Kernel::LocationScale]
+        .into_iter()
+        .enumerate()
+    {
+        let p = prior(kernel, WeightsKind::StickBreaking);
+        let zs = geweke_z(&p, M_FAULT, 31 + i as u64, Kernelised::WrongStickTail);
+        let (worst, crit) = verdict(&zs);
+        assert!(
+            worst > crit,
+            "{kernel:?} x stick-breaking: the wrong stick tail went undetected (max |z| {worst:.2} < {crit:.2}): {zs:?}"
         );
     }
 }

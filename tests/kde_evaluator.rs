@@ -37,7 +37,10 @@ fn kde_row(data: &[f64], h: f64) -> DrawRow {
 #[test]
 fn mixture_density_equals_scipy_gaussian_kde() {
     let fixture: Value = serde_json::from_str(FIXTURE).unwrap();
-    assert!(fixture["scipy"].as_str().is_some(), "fixture must record the scipy version");
+    assert!(
+        fixture["scipy"].as_str().is_some(),
+        "fixture must record the scipy version"
+    );
     let cases = fixture["cases"].as_array().unwrap();
     assert!(cases.len() >= 3);
     for case in cases {
@@ -45,7 +48,10 @@ fn mixture_density_equals_scipy_gaussian_kde() {
         let h = case["bandwidth"].as_f64().unwrap();
         // The fixture itself: scipy's kernel sd is the bandwidth.
         let kernel_sd = case["kernel_sd"].as_f64().unwrap();
-        assert!((kernel_sd / h - 1.0).abs() < 1e-12, "{name}: scipy kernel sd {kernel_sd} != {h}");
+        assert!(
+            (kernel_sd / h - 1.0).abs() < 1e-12,
+            "{name}: scipy kernel sd {kernel_sd} != {h}"
+        );
         let data = floats(&case["data"]);
         let xs = floats(&case["x"]);
         let expected = floats(&case["density"]);
@@ -54,7 +60,10 @@ fn mixture_density_equals_scipy_gaussian_kde() {
         for (&x, &want) in xs.iter().zip(&expected) {
             let got = mixture_density(&row, x);
             let rel = (got - want).abs() / want;
-            assert!(rel < 1e-10, "{name}: at x = {x} mixband {got:e}, scipy {want:e} (relative error {rel:e})");
+            assert!(
+                rel < 1e-10,
+                "{name}: at x = {x} mixband {got:e}, scipy {want:e} (relative error {rel:e})"
+            );
         }
     }
 }

@@ -17,13 +17,20 @@ use mixband::summary::{linspace, Bands, DensityDraws};
 use statrs::distribution::{Continuous, StudentsT};
 
 /// An invented sample (n = 12).
-const DATA: [f64; 12] = [9.1, 10.4, 11.8, 12.2, 8.7, 10.9, 11.3, 13.5, 10.1, 9.8, 12.9, 11.0];
+const DATA: [f64; 12] = [
+    9.1, 10.4, 11.8, 12.2, 8.7, 10.9, 11.3, 13.5, 10.1, 9.8, 12.9, 11.0,
+];
 const GRID_POINTS: usize = 25;
 const CHAINS: usize = 2;
 
 /// Runs `config_body` (everything but [data] and [grid]) on [`DATA`] and returns the grid,
 /// the bands' posterior mean and its Monte Carlo standard error at every grid point.
-fn run_pipeline(tag: &str, config_body: &str, from: f64, to: f64) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
+fn run_pipeline(
+    tag: &str,
+    config_body: &str,
+    from: f64,
+    to: f64,
+) -> (Vec<f64>, Vec<f64>, Vec<f64>) {
     let dir = scratch_dir(tag);
     let mut csv = String::from("y\n");
     for v in DATA {
@@ -53,7 +60,9 @@ fn run_pipeline(tag: &str, config_body: &str, from: f64, to: f64) -> (Vec<f64>, 
     assert_eq!(dens.chains, CHAINS);
     let se = (0..grid.len())
         .map(|g| {
-            let v: f64 = (0..dens.chains).map(|c| batch_means_se(&dens.series(c, g)).powi(2)).sum();
+            let v: f64 = (0..dens.chains)
+                .map(|c| batch_means_se(&dens.series(c, g)).powi(2))
+                .sum();
             v.sqrt() / dens.chains as f64
         })
         .collect();
@@ -104,12 +113,18 @@ fn location_scale_one_component_matches_student_t_predictive() {
     );
     let (grid, est, se) = run_pipeline("exact-ls", &body, mn - 4.0 * scale, mn + 4.0 * scale);
     let bad = misses(&grid, &est, &se, |x| exact.pdf(x));
-    assert_eq!(bad, 0, "posterior mean density misses the Student-t predictive at {bad} of {GRID_POINTS} points");
+    assert_eq!(
+        bad, 0,
+        "posterior mean density misses the Student-t predictive at {bad} of {GRID_POINTS} points"
+    );
     // Power: dropping the (κ_n + 1)/κ_n factor (the predictive of a known-mean model) is
     // about a 4% change of scale and must be detected.
     let wrong = StudentsT::new(mn, (bn / an).sqrt(), 2.0 * an).unwrap();
     let bad = misses(&grid, &est, &se, |x| wrong.pdf(x));
-    assert!(bad >= 5, "a wrong predictive passed at all but {bad} points; the check has no power");
+    assert!(
+        bad >= 5,
+        "a wrong predictive passed at all but {bad} points; the check has no power"
+    );
 }
 
 /// Location kernel, K = 1, independent priors μ ~ N(m, s²), σ² ~ IG(a, b) (semi-conjugate,
@@ -145,7 +160,10 @@ fn location_one_component_matches_semi_conjugate_predictive() {
         .zip(&w)
         .map(|(&mu, &wi)| {
             let s_mu = ss + n * (xbar - mu).powi(2);
-            (wi / total, StudentsT::new(mu, ((b + 0.5 * s_mu) / an).sqrt(), 2.0 * an).unwrap())
+            (
+                wi / total,
+                StudentsT::new(mu, ((b + 0.5 * s_mu) / an).sqrt(), 2.0 * an).unwrap(),
+            )
         })
         .collect();
     let exact = |x: f64| components.iter().map(|(wi, t)| wi * t.pdf(x)).sum::<f64>();
@@ -161,9 +179,16 @@ fn location_one_component_matches_semi_conjugate_predictive() {
     let wrong = |x: f64| {
         components
             .iter()
-            .map(|(wi, t)| wi * StudentsT::new(t.location(), t.scale() * 1.04, t.freedom()).unwrap().pdf(x))
+            .map(|(wi, t)| {
+                wi * StudentsT::new(t.location(), t.scale() * 1.04, t.freedom())
+                    .unwrap()
+                    .pdf(x)
+            })
             .sum::<f64>()
     };
     let bad = misses(&grid, &est, &se, wrong);
-    assert!(bad >= 5, "a wrong predictive passed at all but {bad} points; the check has no power");
+    assert!(
+        bad >= 5,
+        "a wrong predictive passed at all but {bad} points; the check has no power"
+    );
 }
