@@ -69,12 +69,20 @@ fn assess_fake(run: &RunDraws, min_chains: usize) -> DiagnosticsReport {
     assess(run, &dens, &spec(min_chains))
 }
 
-/// The JSON never holds NaN or infinities (serde_json writes them as null; we check the
-/// text and that every number that should be there is).
+/// Every number in the JSON is finite (an unbounded R-hat is f64::MAX), and the numbers
+/// of every assessable quantity are present.
 fn assert_clean_json(r: &DiagnosticsReport) -> serde_json::Value {
+    fn walk(v: &serde_json::Value) {
+        match v {
+            serde_json::Value::Number(n) => assert!(n.as_f64().is_some_and(f64::is_finite), "{n}"),
+            serde_json::Value::Array(a) => a.iter().for_each(walk),
+            serde_json::Value::Object(o) => o.values().for_each(walk),
+            _ => {}
+        }
+    }
     let text = String::from_utf8(r.to_json().unwrap()).unwrap();
-    assert!(!text.contains("NaN") && !text.contains("inf"), "{text}");
     let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    walk(&v);
     for q in v["quantities"].as_array().unwrap() {
         if q["status"] != "unavailable" {
             for key in ["rhat", "ess_bulk", "ess_tail", "mcse_mean", "mcse_q05", "mcse_q95"] {
@@ -246,10 +254,11 @@ fn unequal_chains_are_cut_to_the_shortest() {
 
 #[test]
 fn density_underflowing_to_zero_in_a_tail_is_not_a_stuck_chain() {
-    // A grid point 60 sd from the component: the density underflows to exactly 0 in chain
-    // 1 (mean near 0) and is tiny but positive in chain 2 (mean near 2).
-    let run = fake_run(2, 500, 10, |c| 2.0 * c as f64);
-    let grid = vec![40.0];
+    // A grid point about 42 sd from the component: the density underflows to exactly 0 in
+    // chain 1 (mean near 0; exp(-745) is below the smallest double) and is tiny but
+    // positive in chain 2 (mean near 8, about 34 sd away).
+    let run = fake_run(2, 500, 10, |c| 8.0 * c as f64);
+    let grid = vec![42.0];
     let dens = DensityDraws::new(&run, &grid);
     assert!(dens.series(0, 0).iter().all(|v| *v == 0.0));
     assert!(dens.series(1, 0).iter().all(|v| *v > 0.0));
@@ -258,7 +267,7 @@ fn density_underflowing_to_zero_in_a_tail_is_not_a_stuck_chain() {
     assert_eq!(p.status, QuantityStatus::StuckChain);
     // It fails on R-hat (the chains really differ), not as a stuck chain.
     assert!(!r.failures.iter().any(|f| f.contains("stayed at one value")), "{:?}", r.failures);
-    assert!(r.failures.iter().any(|f| f.contains("density (worst over grid) at x = 40: R-hat")));
+    assert!(r.failures.iter().any(|f| f.contains("density (worst over grid) at x = 42.0: R-hat")));
 }
 
 // ---- the binary on real runs ----
@@ -384,9 +393,12 @@ fn one_chain_run_fails_for_min_chains_via_the_binary() {
 
 #[test]
 fn adequate_run_passes_the_gate_exit_0() {
-    // Two well-separated groups, location kernel, 4 chains x 1500 draws after 500 warm-up.
+    // Two well-separated groups, a two-component location mixture, 4 chains x 1500 draws
+    // after 500 warm-up (under a second in release mode; the lowest ESS is about 5000).
     let dir = tmp("long");
     let cfg = write_config(&dir, "chains = 4\nwarmup = 500\ndraws = 1500", "");
+    let text = std::fs::read_to_string(&cfg).unwrap().replace("components = 4", "components = 2");
+    std::fs::write(&cfg, text).unwrap();
     let out = dir.join("run");
     let o = run_sample(&cfg, &out);
     let stdout = String::from_utf8_lossy(&o.stdout);
@@ -397,5 +409,24 @@ fn adequate_run_passes_the_gate_exit_0() {
     assert_eq!(bands["converged"], true);
     let o = bin().args(["diagnose", out.to_str().unwrap()]).output().unwrap();
     assert_eq!(o.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&o.stdout).contains("convergence gate: PASSED"));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// The built-in demo extended to 4000 draws per chain passes (about 15 s in release mode on
+/// the 2-core development machine, so not run by default; the shipped 1000 draws do not
+/// pass: the density near the grid's ends has a bulk ESS near 200).
+#[test]
+#[ignore]
+fn long_demo_run_passes() {
+    let dir = tmp("demo");
+    let out = dir.join("run");
+    let o = bin().args(["demo", "--out", out.to_str().unwrap(), "--quiet"]).output().unwrap();
+    assert!(matches!(o.status.code(), Some(0) | Some(3)));
+    let o = bin()
+        .args(["extend", out.to_str().unwrap(), "--draws", "3000", "--quiet"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stdout));
     let _ = std::fs::remove_dir_all(&dir);
 }
