@@ -11,7 +11,9 @@
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use mixband::gate::{assess, DiagnosticsReport, GateSpec, QuantityStatus, Thresholds, DENSITY_SUMMARY_NAME};
+use mixband::gate::{
+    assess, DiagnosticsReport, GateSpec, QuantityStatus, Thresholds, DENSITY_SUMMARY_NAME,
+};
 use mixband::store::{ChainDraws, DrawRow, RunDraws};
 use mixband::summary::{linspace, DensityDraws};
 use rand::{Rng, SeedableRng};
@@ -85,7 +87,14 @@ fn assert_clean_json(r: &DiagnosticsReport) -> serde_json::Value {
     walk(&v);
     for q in v["quantities"].as_array().unwrap() {
         if q["status"] != "unavailable" {
-            for key in ["rhat", "ess_bulk", "ess_tail", "mcse_mean", "mcse_q05", "mcse_q95"] {
+            for key in [
+                "rhat",
+                "ess_bulk",
+                "ess_tail",
+                "mcse_mean",
+                "mcse_q05",
+                "mcse_q95",
+            ] {
                 assert!(q[key].is_f64(), "{} {key} = {}", q["name"], q[key]);
             }
         }
@@ -110,9 +119,18 @@ fn iid_fake_store_passes_and_shifted_copy_fails() {
     assert!(loglik.rhat.unwrap() > 1.1 && !loglik.passed);
     let dens = bad.quantity(DENSITY_SUMMARY_NAME).unwrap();
     assert!(dens.rhat.unwrap() > 1.1 && !dens.passed);
-    assert!(bad.failures.iter().any(|f| f.starts_with("loglik: R-hat") && f.contains("above the limit 1.01 (by")));
-    assert!(bad.failures.iter().any(|f| f.starts_with("density (worst over grid) at x = ")));
-    assert!(bad.advice.iter().any(|a| a.contains("warm-up") && a.contains("kernel")));
+    assert!(bad
+        .failures
+        .iter()
+        .any(|f| f.starts_with("loglik: R-hat") && f.contains("above the limit 1.01 (by")));
+    assert!(bad
+        .failures
+        .iter()
+        .any(|f| f.starts_with("density (worst over grid) at x = ")));
+    assert!(bad
+        .advice
+        .iter()
+        .any(|a| a.contains("warm-up") && a.contains("kernel")));
     // Per-component parameters are reported but never gate.
     let mean1 = bad.quantity("mean_1").unwrap();
     assert!(!mean1.label_invariant && !mean1.gated);
@@ -125,8 +143,14 @@ fn too_few_draws_fail_on_ess_with_advice_on_how_many_more() {
     // 2 chains x 100 iid draws: ESS about 200 < 400.
     let r = assess_fake(&fake_run(2, 100, 2, |_| 0.0), 2);
     assert!(!r.passed);
-    assert!(r.failures.iter().any(|f| f.contains("bulk ESS") && f.contains("below the minimum 400")));
-    assert!(r.advice.iter().any(|a| a.contains("mixband extend <run> --draws")));
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.contains("bulk ESS") && f.contains("below the minimum 400")));
+    assert!(r
+        .advice
+        .iter()
+        .any(|a| a.contains("mixband extend <run> --draws")));
 }
 
 #[test]
@@ -137,7 +161,12 @@ fn one_chain_fails_for_min_chains_and_says_so() {
     assert_eq!(r.rhat_scope, mixband::gate::RhatScope::WithinChain);
     assert!(r.failures[0].contains("1 chain(s)") && r.failures[0].contains("min_chains"));
     assert!(r.failures[0].contains("within-chain"));
-    assert_eq!(r.failures.len(), 1, "only the chain count fails: {:?}", r.failures);
+    assert_eq!(
+        r.failures.len(),
+        1,
+        "only the chain count fails: {:?}",
+        r.failures
+    );
     assert!(r.advice[0].contains("[sampler] chains"));
     assert!(r.notes.iter().any(|n| n.contains("within-chain")));
     // R-hat is still computed on the two halves.
@@ -163,7 +192,10 @@ fn constant_continuous_quantity_fails_as_stuck_constant_count_does_not() {
     let ll = r.quantity("loglik").unwrap();
     assert_eq!(ll.status, QuantityStatus::Constant);
     assert_eq!(ll.rhat, Some(1.0));
-    assert!(r.failures.iter().any(|f| f.starts_with("loglik: every draw")));
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.starts_with("loglik: every draw")));
     let occ = r.quantity("occupied").unwrap();
     assert_eq!(occ.status, QuantityStatus::Constant);
     assert!(occ.passed);
@@ -188,14 +220,21 @@ fn stuck_half_chain_of_a_count_alone_does_not_fail_but_of_a_continuous_quantity_
     assert!(occ.gated && occ.passed, "{occ:?}");
     assert!(occ.rhat.unwrap() <= 1.01);
     assert!(occ.note.as_deref().unwrap().contains("count"));
-    assert!(!r.failures.iter().any(|f| f.starts_with("occupied")), "{:?}", r.failures);
+    assert!(
+        !r.failures.iter().any(|f| f.starts_with("occupied")),
+        "{:?}",
+        r.failures
+    );
 
     // The same stuck half in loglik (continuous) fails the gate.
     for row in &mut run.chains[0].rows[..500] {
         row.loglik = -100.0;
     }
     let r = assess_fake(&run, 2);
-    assert!(r.failures.iter().any(|f| f.starts_with("loglik: a chain stayed at one value")));
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.starts_with("loglik: a chain stayed at one value")));
     assert!(!r.passed);
 }
 
@@ -210,7 +249,11 @@ fn nearly_constant_count_is_shown_but_not_gated() {
     let r = assess_fake(&run, 2);
     let occ = r.quantity("occupied").unwrap();
     assert!(!occ.gated);
-    assert!(occ.note.as_deref().unwrap().starts_with("nearly constant: 99.9%"));
+    assert!(occ
+        .note
+        .as_deref()
+        .unwrap()
+        .starts_with("nearly constant: 99.9%"));
     assert!(r.passed, "{:?}", r.failures);
 }
 
@@ -225,20 +268,37 @@ fn non_finite_density_and_too_short_chains_are_unavailable_not_nan() {
     assert!(!r.passed);
     let d = r.quantity(DENSITY_SUMMARY_NAME).unwrap();
     assert_eq!(d.status, QuantityStatus::Unavailable);
-    assert!(r.failures.iter().any(|f| f.contains("cannot be assessed") && f.contains("draw 3 of chain 0")));
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.contains("cannot be assessed") && f.contains("draw 3 of chain 0")));
     let v = assert_clean_json(&r);
-    let x0 = v["density_grid"].as_array().unwrap().iter().find(|p| p["x"] == 0.0).unwrap();
+    let x0 = v["density_grid"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["x"] == 0.0)
+        .unwrap();
     assert!(x0["rhat"].is_null() && x0["status"] == "unavailable");
 
     // Three draws per chain: below the minimum of 4.
     let r = assess_fake(&fake_run(2, 3, 8, |_| 0.0), 2);
     assert!(!r.passed);
-    assert!(r.failures.iter().any(|f| f.starts_with("loglik: cannot be assessed")));
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.starts_with("loglik: cannot be assessed")));
     assert!(r.advice.iter().any(|a| a.contains("at least 4 draws")));
     assert_clean_json(&r);
 
     // No chains at all: no panic, a failed gate.
-    let r = assess_fake(&RunDraws { k: 0, chains: vec![] }, 2);
+    let r = assess_fake(
+        &RunDraws {
+            k: 0,
+            chains: vec![],
+        },
+        2,
+    );
     assert!(!r.passed);
     assert_clean_json(&r);
 }
@@ -249,7 +309,10 @@ fn unequal_chains_are_cut_to_the_shortest() {
     run.chains[2].rows.truncate(450);
     let r = assess_fake(&run, 2);
     assert_eq!(r.draws_per_chain, 450);
-    assert!(r.notes.iter().any(|n| n.contains("600, 600, 450") && n.contains("cut to the shortest")));
+    assert!(r
+        .notes
+        .iter()
+        .any(|n| n.contains("600, 600, 450") && n.contains("cut to the shortest")));
 }
 
 #[test]
@@ -266,8 +329,15 @@ fn density_underflowing_to_zero_in_a_tail_is_not_a_stuck_chain() {
     let p = &r.density_grid[0];
     assert_eq!(p.status, QuantityStatus::StuckChain);
     // It fails on R-hat (the chains really differ), not as a stuck chain.
-    assert!(!r.failures.iter().any(|f| f.contains("stayed at one value")), "{:?}", r.failures);
-    assert!(r.failures.iter().any(|f| f.contains("density (worst over grid) at x = 42.0: R-hat")));
+    assert!(
+        !r.failures.iter().any(|f| f.contains("stayed at one value")),
+        "{:?}",
+        r.failures
+    );
+    assert!(r
+        .failures
+        .iter()
+        .any(|f| f.contains("density (worst over grid) at x = 42.0: R-hat")));
 }
 
 // ---- the binary on real runs ----
@@ -303,7 +373,15 @@ fn write_config(dir: &Path, sampler: &str, extra: &str) -> PathBuf {
 
 fn run_sample(cfg: &Path, out: &Path) -> std::process::Output {
     bin()
-        .args(["sample", cfg.to_str().unwrap(), "--out", out.to_str().unwrap(), "--quiet", "--threads", "2"])
+        .args([
+            "sample",
+            cfg.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--quiet",
+            "--threads",
+            "2",
+        ])
         .output()
         .unwrap()
 }
@@ -315,14 +393,22 @@ fn short_run_fails_the_gate_exit_3_with_outputs_marked() {
     let out = dir.join("run");
     let o = run_sample(&cfg, &out);
     let stdout = String::from_utf8_lossy(&o.stdout);
-    assert_eq!(o.status.code(), Some(3), "{stdout}\n{}", String::from_utf8_lossy(&o.stderr));
+    assert_eq!(
+        o.status.code(),
+        Some(3),
+        "{stdout}\n{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
     assert!(stdout.contains("NOT CONVERGED"), "{stdout}");
     assert!(stdout.contains("ESS") && stdout.contains("what to try"));
     assert!(out.join("bands.csv").exists());
     let bands: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("bands.json")).unwrap()).unwrap();
     assert_eq!(bands["converged"], false);
-    assert!(bands["caution"].as_str().unwrap().starts_with("NOT CONVERGED"));
+    assert!(bands["caution"]
+        .as_str()
+        .unwrap()
+        .starts_with("NOT CONVERGED"));
 
     // The documented fields of diagnostics.json.
     let text = std::fs::read_to_string(out.join("diagnostics.json")).unwrap();
@@ -331,51 +417,120 @@ fn short_run_fails_the_gate_exit_3_with_outputs_marked() {
     for k in ["max_rhat", "min_ess", "min_chains"] {
         assert!(v["thresholds"][k].is_number(), "{k}");
     }
-    let names: Vec<&str> = v["quantities"].as_array().unwrap().iter().map(|q| q["name"].as_str().unwrap()).collect();
-    for n in ["loglik", "occupied", "sigma", DENSITY_SUMMARY_NAME, "weight_1", "mean_1"] {
+    let names: Vec<&str> = v["quantities"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|q| q["name"].as_str().unwrap())
+        .collect();
+    for n in [
+        "loglik",
+        "occupied",
+        "sigma",
+        DENSITY_SUMMARY_NAME,
+        "weight_1",
+        "mean_1",
+    ] {
         assert!(names.contains(&n), "{n} in {names:?}");
     }
-    assert!(!names.contains(&"concentration"), "fixed Dirichlet concentration is not assessed");
+    assert!(
+        !names.contains(&"concentration"),
+        "fixed Dirichlet concentration is not assessed"
+    );
     for q in v["quantities"].as_array().unwrap() {
-        for k in ["rhat", "ess_bulk", "ess_tail", "mcse_mean", "mcse_q05", "mcse_q95", "status", "label_invariant"] {
+        for k in [
+            "rhat",
+            "ess_bulk",
+            "ess_tail",
+            "mcse_mean",
+            "mcse_q05",
+            "mcse_q95",
+            "status",
+            "label_invariant",
+        ] {
             assert!(q.get(k).is_some(), "{k} in {q}");
         }
     }
-    let d = v["quantities"].as_array().unwrap().iter().find(|q| q["name"] == DENSITY_SUMMARY_NAME).unwrap();
+    let d = v["quantities"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|q| q["name"] == DENSITY_SUMMARY_NAME)
+        .unwrap();
     assert!(d["worst_at"]["rhat_x"].is_number() && d["worst_at"]["ess_bulk_x"].is_number());
     assert_eq!(v["density_grid"].as_array().unwrap().len(), 40);
-    assert!(v["failures"].as_array().unwrap().len() >= 1 && v["advice"].as_array().unwrap().len() >= 1);
+    assert!(
+        !v["failures"].as_array().unwrap().is_empty()
+            && !v["advice"].as_array().unwrap().is_empty()
+    );
     assert!(!text.contains("NaN"));
 
     // diagnose agrees: table and exit 3; --json prints the same report.
-    let o = bin().args(["diagnose", out.to_str().unwrap()]).output().unwrap();
+    let o = bin()
+        .args(["diagnose", out.to_str().unwrap()])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(3));
     let table = String::from_utf8_lossy(&o.stdout);
-    assert!(table.contains("NOT CONVERGED") && table.contains("loglik") && table.contains("FAIL"), "{table}");
-    let o = bin().args(["diagnose", out.to_str().unwrap(), "--json"]).output().unwrap();
+    assert!(
+        table.contains("NOT CONVERGED") && table.contains("loglik") && table.contains("FAIL"),
+        "{table}"
+    );
+    let o = bin()
+        .args(["diagnose", out.to_str().unwrap(), "--json"])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(3));
-    assert_eq!(String::from_utf8_lossy(&o.stdout), text, "diagnose --json = diagnostics.json");
+    assert_eq!(
+        String::from_utf8_lossy(&o.stdout),
+        text,
+        "diagnose --json = diagnostics.json"
+    );
 
     // Thresholds loose enough for 60 draws make it pass: exit 0.
     let o = bin()
-        .args(["diagnose", out.to_str().unwrap(), "--max-rhat", "1e6", "--min-ess", "1"])
+        .args([
+            "diagnose",
+            out.to_str().unwrap(),
+            "--max-rhat",
+            "1e6",
+            "--min-ess",
+            "1",
+        ])
         .output()
         .unwrap();
-    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stdout));
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stdout)
+    );
 
     // Bad input: exit 2.
-    let o = bin().args(["diagnose", out.to_str().unwrap(), "--max-rhat", "0.9"]).output().unwrap();
+    let o = bin()
+        .args(["diagnose", out.to_str().unwrap(), "--max-rhat", "0.9"])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&o.stderr).contains("--max-rhat"));
-    let o = bin().args(["diagnose", dir.join("nope").to_str().unwrap()]).output().unwrap();
+    let o = bin()
+        .args(["diagnose", dir.join("nope").to_str().unwrap()])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(2));
-    let o = bin().args(["diagnose", dir.to_str().unwrap()]).output().unwrap();
+    let o = bin()
+        .args(["diagnose", dir.to_str().unwrap()])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(2), "a folder that is not a run");
 
     // Same config and seed: byte-identical diagnostics.json.
     let out2 = dir.join("run2");
     assert_eq!(run_sample(&cfg, &out2).status.code(), Some(3));
-    assert_eq!(std::fs::read(out2.join("diagnostics.json")).unwrap(), text.as_bytes());
+    assert_eq!(
+        std::fs::read(out2.join("diagnostics.json")).unwrap(),
+        text.as_bytes()
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -387,7 +542,10 @@ fn one_chain_run_fails_for_min_chains_via_the_binary() {
     let o = run_sample(&cfg, &out);
     let stdout = String::from_utf8_lossy(&o.stdout);
     assert_eq!(o.status.code(), Some(3), "{stdout}");
-    assert!(stdout.contains("min_chains") && stdout.contains("within-chain"), "{stdout}");
+    assert!(
+        stdout.contains("min_chains") && stdout.contains("within-chain"),
+        "{stdout}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -397,17 +555,30 @@ fn adequate_run_passes_the_gate_exit_0() {
     // after 500 warm-up (under a second in release mode; the lowest ESS is about 5000).
     let dir = tmp("long");
     let cfg = write_config(&dir, "chains = 4\nwarmup = 500\ndraws = 1500", "");
-    let text = std::fs::read_to_string(&cfg).unwrap().replace("components = 4", "components = 2");
+    let text = std::fs::read_to_string(&cfg)
+        .unwrap()
+        .replace("components = 4", "components = 2");
     std::fs::write(&cfg, text).unwrap();
     let out = dir.join("run");
     let o = run_sample(&cfg, &out);
     let stdout = String::from_utf8_lossy(&o.stdout);
-    assert_eq!(o.status.code(), Some(0), "{stdout}\n{}", String::from_utf8_lossy(&o.stderr));
-    assert!(stdout.contains("converged: passed the gate; worst R-hat"), "{stdout}");
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{stdout}\n{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    assert!(
+        stdout.contains("converged: passed the gate; worst R-hat"),
+        "{stdout}"
+    );
     let bands: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("bands.json")).unwrap()).unwrap();
     assert_eq!(bands["converged"], true);
-    let o = bin().args(["diagnose", out.to_str().unwrap()]).output().unwrap();
+    let o = bin()
+        .args(["diagnose", out.to_str().unwrap()])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&o.stdout).contains("convergence gate: PASSED"));
     let _ = std::fs::remove_dir_all(&dir);
@@ -421,12 +592,26 @@ fn adequate_run_passes_the_gate_exit_0() {
 fn long_demo_run_passes() {
     let dir = tmp("demo");
     let out = dir.join("run");
-    let o = bin().args(["demo", "--out", out.to_str().unwrap(), "--quiet"]).output().unwrap();
-    assert!(matches!(o.status.code(), Some(0) | Some(3)));
     let o = bin()
-        .args(["extend", out.to_str().unwrap(), "--draws", "3000", "--quiet"])
+        .args(["demo", "--out", out.to_str().unwrap(), "--quiet"])
         .output()
         .unwrap();
-    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stdout));
+    assert!(matches!(o.status.code(), Some(0) | Some(3)));
+    let o = bin()
+        .args([
+            "extend",
+            out.to_str().unwrap(),
+            "--draws",
+            "3000",
+            "--quiet",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stdout)
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -11,9 +11,17 @@ use crate::store::RunLayout;
 /// Exit code when the gate fails.
 pub(super) const GATE_FAILED: i32 = 3;
 
-pub(super) fn diagnose(run: &Path, json: bool, components: bool, overrides: &ThresholdOverrides) -> Result<i32> {
+pub(super) fn diagnose(
+    run: &Path,
+    json: bool,
+    components: bool,
+    overrides: &ThresholdOverrides,
+) -> Result<i32> {
     if !run.is_dir() {
-        return Err(Error::input(format!("{}: no such run directory", run.display())));
+        return Err(Error::input(format!(
+            "{}: no such run directory",
+            run.display()
+        )));
     }
     let layout = RunLayout::new(run);
     let report = assess_run(&layout, overrides)?;

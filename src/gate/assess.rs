@@ -31,7 +31,8 @@ impl GateSpec {
     pub fn from_config(c: &RunConfig, run_complete: bool) -> Self {
         GateSpec {
             thresholds: Thresholds::from_config(c),
-            concentration_sampled: c.weights == WeightsKind::StickBreaking && c.prior.alpha_prior == HyperChoice::Gamma,
+            concentration_sampled: c.weights == WeightsKind::StickBreaking
+                && c.prior.alpha_prior == HyperChoice::Gamma,
             location_kernel: c.kernel == Kernel::Location,
             run_complete,
         }
@@ -128,8 +129,12 @@ pub fn assess(run: &RunDraws, dens: &DensityDraws, spec: &GateSpec) -> Diagnosti
 pub fn assess_run(layout: &RunLayout, overrides: &ThresholdOverrides) -> Result<DiagnosticsReport> {
     let manifest = Manifest::read(&layout.manifest())?;
     let path = layout.config();
-    let text = std::fs::read_to_string(&path)
-        .map_err(|e| Error::input(format!("cannot read {}: {e}; is this a mixband run directory?", path.display())))?;
+    let text = std::fs::read_to_string(&path).map_err(|e| {
+        Error::input(format!(
+            "cannot read {}: {e}; is this a mixband run directory?",
+            path.display()
+        ))
+    })?;
     let origin = path.display().to_string();
     let raw = parse_config_str(&text, &origin)?;
     let cfg = resolve(&raw, &text, &origin, &layout.root, None)?;

@@ -73,7 +73,11 @@ pub(super) fn assess_grid(
 }
 
 /// Index of the largest (`max`) or smallest value of `f` over the points that have one.
-fn extreme(points: &[GridPoint], f: impl Fn(&GridPoint) -> Option<f64>, max: bool) -> Option<usize> {
+fn extreme(
+    points: &[GridPoint],
+    f: impl Fn(&GridPoint) -> Option<f64>,
+    max: bool,
+) -> Option<usize> {
     let mut best: Option<(usize, f64)> = None;
     for (i, p) in points.iter().enumerate() {
         if let Some(v) = f(p) {
@@ -94,10 +98,16 @@ fn max_of(reports: &[QuantityReport], f: impl Fn(&QuantityReport) -> Option<f64>
 }
 
 fn summarise(points: &[GridPoint], reports: &[QuantityReport]) -> QuantityReport {
-    let unavailable = reports.iter().filter(|r| r.status == QuantityStatus::Unavailable).count();
+    let unavailable = reports
+        .iter()
+        .filter(|r| r.status == QuantityStatus::Unavailable)
+        .count();
     let status = if points.is_empty() || unavailable > 0 {
         QuantityStatus::Unavailable
-    } else if reports.iter().any(|r| r.status == QuantityStatus::StuckChain) {
+    } else if reports
+        .iter()
+        .any(|r| r.status == QuantityStatus::StuckChain)
+    {
         QuantityStatus::StuckChain
     } else if reports.iter().all(|r| r.status == QuantityStatus::Constant) {
         QuantityStatus::Constant
@@ -107,9 +117,15 @@ fn summarise(points: &[GridPoint], reports: &[QuantityReport]) -> QuantityReport
     let ir = extreme(points, |p| p.rhat, true);
     let ib = extreme(points, |p| p.ess_bulk, false);
     let it = extreme(points, |p| p.ess_tail, false);
-    let stuck_zero = reports.iter().filter(|r| r.note.is_some() && r.status == QuantityStatus::StuckChain).count();
+    let stuck_zero = reports
+        .iter()
+        .filter(|r| r.note.is_some() && r.status == QuantityStatus::StuckChain)
+        .count();
     let note = if unavailable > 0 {
-        reports.iter().find_map(|r| r.note.clone()).map(|n| format!("{unavailable} grid point(s): {n}"))
+        reports
+            .iter()
+            .find_map(|r| r.note.clone())
+            .map(|n| format!("{unavailable} grid point(s): {n}"))
     } else if points.is_empty() {
         Some("no grid points".into())
     } else if stuck_zero > 0 {
@@ -184,7 +200,15 @@ fn summarise_failures(
             FailureKind::Rhat => {
                 let r = summary.rhat.unwrap_or(first.value.unwrap_or(0.0));
                 let x = at.rhat_x.unwrap_or(*first_x);
-                (Some(r), rhat_sentence(&format!("{name} at x = {}", fmt_sig(Some(x))), r, t, within_chain))
+                (
+                    Some(r),
+                    rhat_sentence(
+                        &format!("{name} at x = {}", fmt_sig(Some(x))),
+                        r,
+                        t,
+                        within_chain,
+                    ),
+                )
             }
             FailureKind::EssBulk | FailureKind::EssTail => {
                 let (e, x, which) = if kind == FailureKind::EssBulk {
@@ -194,9 +218,19 @@ fn summarise_failures(
                 };
                 let e = e.unwrap_or(first.value.unwrap_or(0.0));
                 let x = x.unwrap_or(*first_x);
-                (Some(e), ess_sentence(&format!("{name} at x = {}", fmt_sig(Some(x))), which, e, t))
+                (
+                    Some(e),
+                    ess_sentence(&format!("{name} at x = {}", fmt_sig(Some(x))), which, e, t),
+                )
             }
-            _ => (None, format!("{name}: first at x = {}: {}", fmt_sig(Some(*first_x)), first.sentence)),
+            _ => (
+                None,
+                format!(
+                    "{name}: first at x = {}: {}",
+                    fmt_sig(Some(*first_x)),
+                    first.sentence
+                ),
+            ),
         };
         out.push(Failure {
             kind,

@@ -24,7 +24,7 @@ pub fn fmt_ess(v: Option<f64>) -> String {
 pub fn fmt_sig(v: Option<f64>) -> String {
     match v {
         None => "n/a".into(),
-        Some(x) if x == 0.0 => "0".into(),
+        Some(0.0) => "0".into(),
         Some(x) if (1e-3..1e5).contains(&x.abs()) => {
             let digits = (2 - x.abs().log10().floor() as i32).max(0) as usize;
             format!("{x:.digits$}")

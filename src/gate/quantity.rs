@@ -159,7 +159,12 @@ pub(super) fn ess_sentence(name: &str, which: &str, e: f64, t: &Thresholds) -> S
 }
 
 /// The R-hat and ESS tests on diagnostics `d` of the quantity `name`.
-pub(super) fn threshold_failures(name: &str, d: &ScalarDiagnostics, t: &Thresholds, within_chain: bool) -> Vec<Failure> {
+pub(super) fn threshold_failures(
+    name: &str,
+    d: &ScalarDiagnostics,
+    t: &Thresholds,
+    within_chain: bool,
+) -> Vec<Failure> {
     let mut out = Vec::new();
     let q = Some(name.to_string());
     if d.rhat > t.max_rhat {
@@ -211,7 +216,11 @@ fn modal_share(s: &Series) -> (f64, f64) {
     all.sort_by(f64::total_cmp);
     let (mut best, mut best_v, mut run) = (0usize, f64::NAN, 0usize);
     for i in 0..all.len() {
-        run = if i > 0 && all[i] == all[i - 1] { run + 1 } else { 1 };
+        run = if i > 0 && all[i] == all[i - 1] {
+            run + 1
+        } else {
+            1
+        };
         if run > best {
             best = run;
             best_v = all[i];
@@ -227,7 +236,12 @@ fn modal_share(s: &Series) -> (f64, f64) {
 /// a count (runs of equal counts are normal), which is judged on R-hat and ESS, and it does
 /// not fail a density point whose stuck half-chains sit at exactly 0 (underflow). A count
 /// that is nearly constant (share ≥ [`NEARLY_CONSTANT_SHARE`]) is not gated.
-pub(super) fn evaluate(s: &Series, gated: bool, t: &Thresholds, within_chain: bool) -> (QuantityReport, Vec<Failure>) {
+pub(super) fn evaluate(
+    s: &Series,
+    gated: bool,
+    t: &Thresholds,
+    within_chain: bool,
+) -> (QuantityReport, Vec<Failure>) {
     let d = match scalar_diagnostics(&s.slices()) {
         Ok(d) => d,
         Err(e) => {

@@ -71,8 +71,12 @@ impl DiagnosticsReport {
     /// Reads a diagnostics.json back.
     pub fn read(path: &Path) -> Result<Self> {
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        serde_json::from_str(&text)
-            .map_err(|e| Error::input(format!("{}: unreadable diagnostics file: {e}", path.display())))
+        serde_json::from_str(&text).map_err(|e| {
+            Error::input(format!(
+                "{}: unreadable diagnostics file: {e}",
+                path.display()
+            ))
+        })
     }
 
     /// The entry called `name`, if any.

@@ -41,7 +41,11 @@ impl Series {
             name: name.to_string(),
             kind,
             label_invariant,
-            chains: run.chains.iter().map(|c| c.rows[..len].iter().map(&f).collect()).collect(),
+            chains: run
+                .chains
+                .iter()
+                .map(|c| c.rows[..len].iter().map(&f).collect())
+                .collect(),
         }
     }
 
@@ -53,18 +57,34 @@ impl Series {
 
 /// The label-invariant scalars: `loglik`, `occupied`, `concentration` (when sampled) and
 /// `sigma`, the common sd of the location kernel (the `sd_1` column; every `sd_k` equals it).
-pub fn label_invariant_series(run: &RunDraws, concentration_sampled: bool, location_kernel: bool) -> Vec<Series> {
+pub fn label_invariant_series(
+    run: &RunDraws,
+    concentration_sampled: bool,
+    location_kernel: bool,
+) -> Vec<Series> {
     let mut out = vec![
         Series::from_rows("loglik", QuantityKind::Continuous, true, run, |r| r.loglik),
-        Series::from_rows("occupied", QuantityKind::Count, true, run, |r| f64::from(r.occupied)),
+        Series::from_rows("occupied", QuantityKind::Count, true, run, |r| {
+            f64::from(r.occupied)
+        }),
     ];
     if concentration_sampled {
-        out.push(Series::from_rows("concentration", QuantityKind::Continuous, true, run, |r| {
-            r.concentration
-        }));
+        out.push(Series::from_rows(
+            "concentration",
+            QuantityKind::Continuous,
+            true,
+            run,
+            |r| r.concentration,
+        ));
     }
     if location_kernel && run.k > 0 {
-        out.push(Series::from_rows("sigma", QuantityKind::Continuous, true, run, |r| r.sd[0]));
+        out.push(Series::from_rows(
+            "sigma",
+            QuantityKind::Continuous,
+            true,
+            run,
+            |r| r.sd[0],
+        ));
     }
     out
 }
@@ -75,16 +95,28 @@ pub fn component_series(run: &RunDraws, location_kernel: bool) -> Vec<Series> {
     let mut out = Vec::new();
     for j in 0..run.k {
         let n = j + 1;
-        out.push(Series::from_rows(&format!("weight_{n}"), QuantityKind::Continuous, false, run, |r| {
-            r.weight[j]
-        }));
-        out.push(Series::from_rows(&format!("mean_{n}"), QuantityKind::Continuous, false, run, |r| {
-            r.mean[j]
-        }));
+        out.push(Series::from_rows(
+            &format!("weight_{n}"),
+            QuantityKind::Continuous,
+            false,
+            run,
+            |r| r.weight[j],
+        ));
+        out.push(Series::from_rows(
+            &format!("mean_{n}"),
+            QuantityKind::Continuous,
+            false,
+            run,
+            |r| r.mean[j],
+        ));
         if !location_kernel {
-            out.push(Series::from_rows(&format!("sd_{n}"), QuantityKind::Continuous, false, run, |r| {
-                r.sd[j]
-            }));
+            out.push(Series::from_rows(
+                &format!("sd_{n}"),
+                QuantityKind::Continuous,
+                false,
+                run,
+                |r| r.sd[j],
+            ));
         }
     }
     out

@@ -58,7 +58,11 @@ fn list(out: &mut String, title: &str, items: &[String]) {
 pub fn render_table(r: &DiagnosticsReport, components: bool) -> String {
     let mut out = String::new();
     let t = &r.thresholds;
-    let verdict = if r.passed { "PASSED" } else { "NOT CONVERGED (gate failed)" };
+    let verdict = if r.passed {
+        "PASSED"
+    } else {
+        "NOT CONVERGED (gate failed)"
+    };
     let _ = writeln!(out, "convergence gate: {verdict}");
     let scope = match r.rhat_scope {
         RhatScope::BetweenChains => "R-hat between chains",
@@ -74,17 +78,25 @@ pub fn render_table(r: &DiagnosticsReport, components: bool) -> String {
         .iter()
         .filter(|q| components || q.label_invariant)
         .collect();
-    let width = shown.iter().map(|q| q.name.len()).max().unwrap_or(0).max(DENSITY_SUMMARY_NAME.len());
+    let width = shown
+        .iter()
+        .map(|q| q.name.len())
+        .max()
+        .unwrap_or(0)
+        .max(DENSITY_SUMMARY_NAME.len());
     let _ = writeln!(
         out,
-        "{:<width$}  {:>9}  {:>8}  {:>8}  {:>10}  {:<11}  {}",
-        "quantity", "R-hat", "bulk ESS", "tail ESS", "MCSE mean", "status", "gate"
+        "{:<width$}  {:>9}  {:>8}  {:>8}  {:>10}  {:<11}  gate",
+        "quantity", "R-hat", "bulk ESS", "tail ESS", "MCSE mean", "status"
     );
     let _ = writeln!(out, "{}", "-".repeat(width + 62));
     let mut header_done = false;
     for q in shown {
         if !q.label_invariant && !header_done {
-            let _ = writeln!(out, "-- per component (not label-invariant; never gated) --");
+            let _ = writeln!(
+                out,
+                "-- per component (not label-invariant; never gated) --"
+            );
             header_done = true;
         }
         row(&mut out, width, q);
@@ -98,10 +110,13 @@ pub fn render_table(r: &DiagnosticsReport, components: bool) -> String {
     out
 }
 
+/// A value and where it occurs.
+type Located = Option<(f64, String)>;
+
 /// Worst R-hat and lowest ESS over the gated quantities, with where they occur.
-fn extremes(r: &DiagnosticsReport) -> (Option<(f64, String)>, Option<(f64, String)>) {
-    let mut worst: Option<(f64, String)> = None;
-    let mut lowest: Option<(f64, String)> = None;
+fn extremes(r: &DiagnosticsReport) -> (Located, Located) {
+    let mut worst: Located = None;
+    let mut lowest: Located = None;
     for q in r.quantities.iter().filter(|q| q.gated) {
         let at = |x: Option<f64>| match x {
             Some(x) => format!("density at x = {}", fmt_sig(Some(x))),
@@ -130,11 +145,17 @@ fn extremes(r: &DiagnosticsReport) -> (Option<(f64, String)>, Option<(f64, Strin
 pub fn verdict(r: &DiagnosticsReport) -> String {
     if r.passed {
         let (worst, lowest) = extremes(r);
-        let w = worst.map_or("n/a".into(), |(v, at)| format!("{} ({at})", fmt_rhat(Some(v))));
-        let l = lowest.map_or("n/a".into(), |(v, at)| format!("{} ({at})", fmt_ess(Some(v))));
+        let w = worst.map_or("n/a".into(), |(v, at)| {
+            format!("{} ({at})", fmt_rhat(Some(v)))
+        });
+        let l = lowest.map_or("n/a".into(), |(v, at)| {
+            format!("{} ({at})", fmt_ess(Some(v)))
+        });
         return format!("converged: passed the gate; worst R-hat {w}, lowest ESS {l}\n");
     }
-    let mut out = String::from("NOT CONVERGED: the run failed the convergence gate; do not report its numbers.\n");
+    let mut out = String::from(
+        "NOT CONVERGED: the run failed the convergence gate; do not report its numbers.\n",
+    );
     for f in &r.failures {
         let _ = writeln!(out, "  - {f}");
     }

@@ -40,12 +40,16 @@ impl Thresholds {
     pub fn with(self, o: &ThresholdOverrides) -> Result<Self> {
         if let Some(r) = o.max_rhat {
             if !(r.is_finite() && r > 1.0) {
-                return Err(Error::input(format!("--max-rhat must be a finite number above 1, got {r}")));
+                return Err(Error::input(format!(
+                    "--max-rhat must be a finite number above 1, got {r}"
+                )));
             }
         }
         if let Some(e) = o.min_ess {
             if !(e.is_finite() && e > 0.0) {
-                return Err(Error::input(format!("--min-ess must be a positive finite number, got {e}")));
+                return Err(Error::input(format!(
+                    "--min-ess must be a positive finite number, got {e}"
+                )));
             }
         }
         if o.min_chains == Some(0) {
@@ -77,10 +81,22 @@ mod tests {
         assert_eq!(t.with(&o).unwrap().min_ess, 100.0);
         assert_eq!(t.with(&o).unwrap().max_rhat, 1.01);
         for bad in [
-            ThresholdOverrides { max_rhat: Some(1.0), ..Default::default() },
-            ThresholdOverrides { max_rhat: Some(f64::NAN), ..Default::default() },
-            ThresholdOverrides { min_ess: Some(0.0), ..Default::default() },
-            ThresholdOverrides { min_chains: Some(0), ..Default::default() },
+            ThresholdOverrides {
+                max_rhat: Some(1.0),
+                ..Default::default()
+            },
+            ThresholdOverrides {
+                max_rhat: Some(f64::NAN),
+                ..Default::default()
+            },
+            ThresholdOverrides {
+                min_ess: Some(0.0),
+                ..Default::default()
+            },
+            ThresholdOverrides {
+                min_chains: Some(0),
+                ..Default::default()
+            },
         ] {
             assert!(t.with(&bad).is_err(), "{bad:?}");
         }
