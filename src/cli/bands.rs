@@ -4,8 +4,8 @@ use std::path::Path;
 
 use crate::config::resolve_check_levels;
 use crate::error::{Error, Result};
-use crate::run::{write_bands, Prepared};
 use crate::gate::{assess, DiagnosticsReport, GateSpec};
+use crate::run::{write_bands, Prepared};
 use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
 use crate::summary::{linspace, Bands, DensityDraws};
 
@@ -16,7 +16,11 @@ pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<Diagnosti
     let c = &prep.config;
     let manifest = Manifest::read(&layout.manifest())?;
     let (draws, dens) = densities(layout, &manifest, c.grid_from, c.grid_to, c.grid_points)?;
-    let report = assess(&draws, &dens, &GateSpec::from_config(c, manifest.status == RunStatus::Complete));
+    let report = assess(
+        &draws,
+        &dens,
+        &GateSpec::from_config(c, manifest.status == RunStatus::Complete),
+    );
     report.write(layout)?;
     write_bands(layout, &Bands::new(&dens, &c.levels), Some(report.passed))?;
     Ok(report)
@@ -31,7 +35,10 @@ fn densities(
 ) -> Result<(RunDraws, DensityDraws)> {
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
     if draws.min_len() == 0 {
-        return Err(Error::input(format!("{}: no draws stored yet", layout.root.display())));
+        return Err(Error::input(format!(
+            "{}: no draws stored yet",
+            layout.root.display()
+        )));
     }
     let grid = linspace(from, to, points);
     let dens = DensityDraws::new(&draws, &grid);
@@ -39,10 +46,18 @@ fn densities(
 }
 
 /// Bands on another grid; they carry the verdict of the run's diagnostics.json, if any.
-fn write_for_grid(layout: &RunLayout, from: f64, to: f64, points: usize, levels: &[f64]) -> Result<()> {
+fn write_for_grid(
+    layout: &RunLayout,
+    from: f64,
+    to: f64,
+    points: usize,
+    levels: &[f64],
+) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
     let (_, dens) = densities(layout, &manifest, from, to, points)?;
-    let converged = DiagnosticsReport::read(&layout.diagnostics_json()).ok().map(|r| r.passed);
+    let converged = DiagnosticsReport::read(&layout.diagnostics_json())
+        .ok()
+        .map(|r| r.passed);
     write_bands(layout, &Bands::new(&dens, levels), converged)
 }
 
@@ -61,13 +76,21 @@ pub(super) fn bands(
     let to = to.unwrap_or(c.grid_to);
     let levels = levels.unwrap_or_else(|| c.levels.clone());
     if points < 2 {
-        return Err(Error::input(format!("--points must be at least 2, got {points}")));
+        return Err(Error::input(format!(
+            "--points must be at least 2, got {points}"
+        )));
     }
     if !(from.is_finite() && to.is_finite() && from < to) {
-        return Err(Error::input(format!("--from must be below --to, got {from} and {to}")));
+        return Err(Error::input(format!(
+            "--from must be below --to, got {from} and {to}"
+        )));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
     write_for_grid(&layout, from, to, points, &levels)?;
-    println!("mixband: wrote {} and {}", layout.bands_csv().display(), layout.bands_json().display());
+    println!(
+        "mixband: wrote {} and {}",
+        layout.bands_csv().display(),
+        layout.bands_json().display()
+    );
     Ok(0)
 }
