@@ -4,6 +4,8 @@
 //! and reading the reference fixtures written by tests/reference/*.py.
 #![allow(dead_code)]
 
+pub mod marron_wand;
+
 use std::path::PathBuf;
 use std::sync::atomic::AtomicBool;
 
