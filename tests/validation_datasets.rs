@@ -20,7 +20,9 @@
 mod validation_support;
 
 use mixband::sampler::ChainPlan;
-use validation_support::{fit_with_defaults, fixture, floats, kde, l1, modes, silverman_bandwidth, trapezoid};
+use validation_support::{
+    fit_with_defaults, fixture, floats, kde, l1, modes, silverman_bandwidth, trapezoid,
+};
 
 pub struct DatasetFit {
     pub grid: Vec<f64>,
@@ -33,7 +35,10 @@ pub struct DatasetFit {
 pub fn fit_dataset(name: &str, scale: f64, chains: u64, plan: ChainPlan) -> DatasetFit {
     let data = fixture("datasets.json");
     let refs = fixture("density_references.json");
-    let x: Vec<f64> = floats(&data[name]["values"]).iter().map(|v| v / scale).collect();
+    let x: Vec<f64> = floats(&data[name]["values"])
+        .iter()
+        .map(|v| v / scale)
+        .collect();
     let r = &refs[name];
     let grid = floats(&r["grid"]);
     let post = fit_with_defaults(&x, "", 1990, chains, plan, &grid).mean();
@@ -60,7 +65,10 @@ fn check(name: &str, f: &DatasetFit, mode_tol: f64) {
         trapezoid(&f.grid, &f.post),
     );
     for &(xk, _) in &km {
-        let near = pm.iter().map(|p| (p.0 - xk).abs()).fold(f64::INFINITY, f64::min);
+        let near = pm
+            .iter()
+            .map(|p| (p.0 - xk).abs())
+            .fold(f64::INFINITY, f64::min);
         assert!(near <= mode_tol, "{name}: KDE mode at {xk:.3} has no posterior-mean mode within {mode_tol} (nearest {near:.3})");
     }
     assert!(dk <= L1_GUARD, "{name}: L1 to KDE {dk:.4} > {L1_GUARD}");
@@ -70,7 +78,11 @@ fn check(name: &str, f: &DatasetFit, mode_tol: f64) {
 /// Gross-failure bound on the L1 distances (see the module comment).
 const L1_GUARD: f64 = 0.5;
 
-const PLAN: ChainPlan = ChainPlan { warmup: 1000, draws: 1000, thin: 1 };
+const PLAN: ChainPlan = ChainPlan {
+    warmup: 1000,
+    draws: 1000,
+    thin: 1,
+};
 
 /// The Rust kernel estimate and Silverman bandwidth equal scipy's on the same data.
 #[test]
@@ -78,14 +90,20 @@ fn kde_and_silverman_bandwidth_match_scipy() {
     let data = fixture("datasets.json");
     let refs = fixture("density_references.json");
     for (name, scale) in [("faithful", 1.0), ("galaxies", 1000.0)] {
-        let x: Vec<f64> = floats(&data[name]["values"]).iter().map(|v| v / scale).collect();
+        let x: Vec<f64> = floats(&data[name]["values"])
+            .iter()
+            .map(|v| v / scale)
+            .collect();
         let h = silverman_bandwidth(&x);
         let want = refs[name]["bandwidth"].as_f64().unwrap();
         assert!((h - want).abs() < 1e-12 * want, "{name}: h {h} vs {want}");
         let grid = floats(&refs[name]["grid"]);
         let got = kde(&x, h, &grid);
         for (a, b) in got.iter().zip(floats(&refs[name]["kde"])) {
-            assert!((a - b).abs() <= 1e-10 * b.max(1e-12), "{name}: {a} vs scipy {b}");
+            assert!(
+                (a - b).abs() <= 1e-10 * b.max(1e-12),
+                "{name}: {a} vs scipy {b}"
+            );
         }
     }
 }
@@ -98,11 +116,20 @@ fn faithful_posterior_mean_matches_references() {
     check("faithful", &f, 0.15);
     let pm = modes(&f.grid, &f.post, 0.05);
     for (xb, _) in modes(&f.grid, &f.bgm, 0.05) {
-        let near = pm.iter().map(|p| (p.0 - xb).abs()).fold(f64::INFINITY, f64::min);
+        let near = pm
+            .iter()
+            .map(|p| (p.0 - xb).abs())
+            .fold(f64::INFINITY, f64::min);
         assert!(near <= 0.25, "faithful: BGM mode at {xb:.3} has no posterior-mean mode within 0.25 (nearest {near:.3})");
     }
-    assert!(pm.iter().any(|m| (m.0 - 2.0).abs() < 0.3), "faithful: no mode near 2 min: {pm:?}");
-    assert!(pm.iter().any(|m| (m.0 - 4.4).abs() < 0.3), "faithful: no mode near 4.4 min: {pm:?}");
+    assert!(
+        pm.iter().any(|m| (m.0 - 2.0).abs() < 0.3),
+        "faithful: no mode near 2 min: {pm:?}"
+    );
+    assert!(
+        pm.iter().any(|m| (m.0 - 4.4).abs() < 0.3),
+        "faithful: no mode near 4.4 min: {pm:?}"
+    );
 }
 
 /// Galaxies (1000 km/s): the KDE's modes near 9.7, 20 and 32.7 each matched within 1.0.

@@ -66,8 +66,14 @@ fn kde_configuration_is_the_kernel_estimate() {
     for (g, w) in grid.iter().zip(&want) {
         let a = state.density((g - c) / s) / s;
         let b = mixture_density(&row, *g);
-        assert!((a - w).abs() <= 1e-10 * w.max(1e-12), "State::density at {g}: {a} vs scipy {w}");
-        assert!((b - w).abs() <= 1e-10 * w.max(1e-12), "mixture_density at {g}: {b} vs scipy {w}");
+        assert!(
+            (a - w).abs() <= 1e-10 * w.max(1e-12),
+            "State::density at {g}: {a} vs scipy {w}"
+        );
+        assert!(
+            (b - w).abs() <= 1e-10 * w.max(1e-12),
+            "mixture_density at {g}: {b} vs scipy {w}"
+        );
     }
 }
 
@@ -102,8 +108,14 @@ fn pinned_run(x: &[f64], h: f64, grid: &[f64], plan: ChainPlan) -> (Vec<f64>, Ve
     }
     let states = chain_from(&z, &prior, 4242, 1, plan, Some(start));
     let sig: Vec<f64> = states.iter().map(|st| st.var[0].sqrt() * s).collect();
-    assert!(sig.iter().all(|v| (v / sigma - 1.0).abs() < 0.01), "σ is pinned by its prior");
-    let wmax = states.iter().flat_map(|st| st.weights()).fold(0.0, f64::max);
+    assert!(
+        sig.iter().all(|v| (v / sigma - 1.0).abs() < 0.01),
+        "σ is pinned by its prior"
+    );
+    let wmax = states
+        .iter()
+        .flat_map(|st| st.weights())
+        .fold(0.0, f64::max);
     assert!(wmax * x.len() as f64 <= 1.05, "weights are pinned near 1/K");
     let post = PosteriorDensity::new(&states, grid, c, s).mean();
     (post, kde(x, h, grid))
@@ -113,9 +125,21 @@ fn pinned_run(x: &[f64], h: f64, grid: &[f64], plan: ChainPlan) -> (Vec<f64>, Ve
 fn pinned_location_run_reproduces_kde_on_separated_data() {
     // Twelve observations 8 bandwidths apart (h = 0.5), unevenly ordered.
     let h = 0.5;
-    let x: Vec<f64> = [3, 0, 7, 1, 10, 5, 2, 11, 4, 9, 6, 8].iter().map(|&i| 4.0 * i as f64 + 0.1 * (i % 3) as f64).collect();
+    let x: Vec<f64> = [3, 0, 7, 1, 10, 5, 2, 11, 4, 9, 6, 8]
+        .iter()
+        .map(|&i| 4.0 * i as f64 + 0.1 * (i % 3) as f64)
+        .collect();
     let grid = linspace(-3.0, 47.0, 2001);
-    let (post, k) = pinned_run(&x, h, &grid, ChainPlan { warmup: 200, draws: 2000, thin: 1 });
+    let (post, k) = pinned_run(
+        &x,
+        h,
+        &grid,
+        ChainPlan {
+            warmup: 200,
+            draws: 2000,
+            thin: 1,
+        },
+    );
     let d = l1(&grid, &post, &k);
     eprintln!("KDE limit, separated data: L1(posterior mean, KDE at h) = {d:.5}");
     assert!(d < 0.02, "L1 {d:.4} ≥ 0.02");
@@ -133,7 +157,16 @@ fn kde_limit_on_faithful_reported() {
     let x = floats(&data["faithful"]["values"]);
     let h = refs["faithful"]["bandwidth"].as_f64().unwrap();
     let grid = floats(&refs["faithful"]["grid"]);
-    let (post, k) = pinned_run(&x, h, &grid, ChainPlan { warmup: 500, draws: 1000, thin: 1 });
+    let (post, k) = pinned_run(
+        &x,
+        h,
+        &grid,
+        ChainPlan {
+            warmup: 500,
+            draws: 1000,
+            thin: 1,
+        },
+    );
     eprintln!(
         "KDE limit, faithful: L1(posterior mean, KDE at h) = {:.4}; posterior mass on the grid {:.4}",
         l1(&grid, &post, &k),

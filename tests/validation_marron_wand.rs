@@ -28,7 +28,9 @@ mod validation_support;
 
 use mixband::sampler::ChainPlan;
 use validation_support::marron_wand::{marron_wand, sample, true_density, NAMES};
-use validation_support::{fit_with_defaults, fixture, floats, ise, kde, linspace, silverman_bandwidth};
+use validation_support::{
+    fit_with_defaults, fixture, floats, ise, kde, linspace, silverman_bandwidth,
+};
 
 /// Prior lines added to the defaults (see the module comment).
 pub const PRIOR: &str = "[prior]\ndirichlet_delta = 0.1\n";
@@ -44,7 +46,14 @@ pub fn grid() -> Vec<f64> {
     linspace(-3.5, 3.5, 1401)
 }
 
-pub fn replicate(name: &str, prior: &str, n: usize, seed: u64, chains: u64, plan: ChainPlan) -> Replicate {
+pub fn replicate(
+    name: &str,
+    prior: &str,
+    n: usize,
+    seed: u64,
+    chains: u64,
+    plan: ChainPlan,
+) -> Replicate {
     let comps = marron_wand(name);
     let x = sample(&comps, n, seed);
     let g = grid();
@@ -53,7 +62,9 @@ pub fn replicate(name: &str, prior: &str, n: usize, seed: u64, chains: u64, plan
     let mean = post.mean();
     let (lo, hi) = post.band(0.95);
     let k = kde(&x, silverman_bandwidth(&x), &g);
-    let inside = (0..g.len()).filter(|&i| lo[i] <= truth[i] && truth[i] <= hi[i]).count();
+    let inside = (0..g.len())
+        .filter(|&i| lo[i] <= truth[i] && truth[i] <= hi[i])
+        .count();
     Replicate {
         ise_post: ise(&g, &mean, &truth),
         ise_kde: ise(&g, &k, &truth),
@@ -66,7 +77,9 @@ pub fn replicate(name: &str, prior: &str, n: usize, seed: u64, chains: u64, plan
 pub fn benchmark(prior: &str, reps: u64, chains: u64, plan: ChainPlan) {
     let mut worse = Vec::new();
     for name in NAMES {
-        let rs: Vec<Replicate> = (0..reps).map(|r| replicate(name, prior, 500, 1992 + 100 * r, chains, plan)).collect();
+        let rs: Vec<Replicate> = (0..reps)
+            .map(|r| replicate(name, prior, 500, 1992 + 100 * r, chains, plan))
+            .collect();
         let m = |f: &dyn Fn(&Replicate) -> f64| rs.iter().map(f).sum::<f64>() / rs.len() as f64;
         let (ip, ik, cov) = (m(&|r| r.ise_post), m(&|r| r.ise_kde), m(&|r| r.coverage95));
         eprintln!(
@@ -80,7 +93,10 @@ pub fn benchmark(prior: &str, reps: u64, chains: u64, plan: ChainPlan) {
             worse.push(format!("{name}: ISE {ip:.5} > KDE {ik:.5}"));
         }
     }
-    assert!(worse.is_empty(), "posterior mean worse than Silverman KDE on average: {worse:?}");
+    assert!(
+        worse.is_empty(),
+        "posterior mean worse than Silverman KDE on average: {worse:?}"
+    );
 }
 
 /// The Rust table against scipy.stats.norm mixtures (tests/reference/marron_wand.py).
@@ -91,26 +107,54 @@ fn marron_wand_table_matches_scipy_reference() {
     for name in NAMES {
         let d = &fx["densities"][name];
         let comps = marron_wand(name);
-        assert_eq!(d["components"].as_array().unwrap().len(), comps.len(), "{name}");
+        assert_eq!(
+            d["components"].as_array().unwrap().len(),
+            comps.len(),
+            "{name}"
+        );
         for (x, want) in points.iter().zip(floats(&d["values"])) {
             let got = true_density(&comps, *x);
-            assert!((got - want).abs() <= 1e-12 * want.max(1e-300), "{name} at {x}: {got} vs scipy {want}");
+            assert!(
+                (got - want).abs() <= 1e-12 * want.max(1e-300),
+                "{name} at {x}: {got} vs scipy {want}"
+            );
         }
-        assert!((d["integral"].as_f64().unwrap() - 1.0).abs() < 1e-6, "{name} integrates to 1");
+        assert!(
+            (d["integral"].as_f64().unwrap() - 1.0).abs() < 1e-6,
+            "{name} integrates to 1"
+        );
     }
 }
 
 /// Fast benchmark: 2 replicates of n = 500 per density, one chain of 400 + 400 sweeps.
 #[test]
 fn posterior_mean_beats_silverman_kde_on_marron_wand_densities() {
-    benchmark(PRIOR, 2, 1, ChainPlan { warmup: 400, draws: 400, thin: 1 });
+    benchmark(
+        PRIOR,
+        2,
+        1,
+        ChainPlan {
+            warmup: 400,
+            draws: 400,
+            thin: 1,
+        },
+    );
 }
 
 /// Larger benchmark for docs/validation.md: 10 replicates, 2 chains of 1000 + 1000 sweeps.
 #[test]
 #[ignore]
 fn marron_wand_large() {
-    benchmark(PRIOR, 10, 2, ChainPlan { warmup: 1000, draws: 1000, thin: 1 });
+    benchmark(
+        PRIOR,
+        10,
+        2,
+        ChainPlan {
+            warmup: 1000,
+            draws: 1000,
+            thin: 1,
+        },
+    );
 }
 
 /// The same benchmark with the current default δ = 1: fails on density #1 (kept to show
@@ -118,5 +162,14 @@ fn marron_wand_large() {
 #[test]
 #[ignore]
 fn marron_wand_with_delta_one() {
-    benchmark("[prior]\ndirichlet_delta = 1.0\n", 4, 1, ChainPlan { warmup: 1000, draws: 1000, thin: 1 });
+    benchmark(
+        "[prior]\ndirichlet_delta = 1.0\n",
+        4,
+        1,
+        ChainPlan {
+            warmup: 1000,
+            draws: 1000,
+            thin: 1,
+        },
+    );
 }

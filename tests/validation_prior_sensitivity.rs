@@ -34,7 +34,10 @@ pub fn demo_mean(f: f64, seed: u64, chains: u64, plan: ChainPlan) -> (Vec<f64>, 
     let (text, dir) = demo();
     let base = Prepared::from_text(&text, "demo.toml", &dir, None).expect("demo prepares");
     let p = &base.config.prior;
-    assert!(!text.contains("[prior]"), "the demo sets no prior; the defaults are what is tested");
+    assert!(
+        !text.contains("[prior]"),
+        "the demo sets no prior; the defaults are what is tested"
+    );
     let scaled = format!(
         "{text}\n[prior]\ncentre_sd = {:?}\ncentre_shrink = {:?}\nvar_scale = {:?}\nvar_scale_rate = {:?}\n",
         p.centre_sd * f,
@@ -68,12 +71,26 @@ pub fn sensitivity(chains: u64, plan: ChainPlan) {
 
 #[test]
 fn demo_posterior_mean_is_insensitive_to_halving_or_doubling_prior_scales() {
-    sensitivity(2, ChainPlan { warmup: 500, draws: 500, thin: 1 });
+    sensitivity(
+        2,
+        ChainPlan {
+            warmup: 500,
+            draws: 500,
+            thin: 1,
+        },
+    );
 }
 
 /// Demo length (4 chains × 1000 + 1000 sweeps) for docs/validation.md.
 #[test]
 #[ignore]
 fn prior_sensitivity_large() {
-    sensitivity(4, ChainPlan { warmup: 1000, draws: 1000, thin: 1 });
+    sensitivity(
+        4,
+        ChainPlan {
+            warmup: 1000,
+            draws: 1000,
+            thin: 1,
+        },
+    );
 }

@@ -10,25 +10,41 @@ use rand_distr::{Distribution, StandardNormal};
 pub fn marron_wand(name: &str) -> Vec<(f64, f64, f64)> {
     match name {
         "1_gaussian" => vec![(1.0, 0.0, 1.0)],
-        "2_skewed_unimodal" => vec![(0.2, 0.0, 1.0), (0.2, 0.5, 2.0 / 3.0), (0.6, 13.0 / 12.0, 5.0 / 9.0)],
+        "2_skewed_unimodal" => vec![
+            (0.2, 0.0, 1.0),
+            (0.2, 0.5, 2.0 / 3.0),
+            (0.6, 13.0 / 12.0, 5.0 / 9.0),
+        ],
         "4_kurtotic_unimodal" => vec![(2.0 / 3.0, 0.0, 1.0), (1.0 / 3.0, 0.0, 0.1)],
         "6_bimodal" => vec![(0.5, -1.0, 2.0 / 3.0), (0.5, 1.0, 2.0 / 3.0)],
         "14_smooth_comb" => (0..6)
             .map(|l| {
                 let p = 0.5f64.powi(l);
-                (2f64.powi(5 - l) / 63.0, (65.0 - 96.0 * p) / 21.0, (32.0 / 63.0) * p)
+                (
+                    2f64.powi(5 - l) / 63.0,
+                    (65.0 - 96.0 * p) / 21.0,
+                    (32.0 / 63.0) * p,
+                )
             })
             .collect(),
         _ => panic!("unknown density {name}"),
     }
 }
 
-pub const NAMES: [&str; 5] = ["1_gaussian", "2_skewed_unimodal", "4_kurtotic_unimodal", "6_bimodal", "14_smooth_comb"];
+pub const NAMES: [&str; 5] = [
+    "1_gaussian",
+    "2_skewed_unimodal",
+    "4_kurtotic_unimodal",
+    "6_bimodal",
+    "14_smooth_comb",
+];
 
 pub fn true_density(comps: &[(f64, f64, f64)], x: f64) -> f64 {
     comps
         .iter()
-        .map(|&(w, m, s)| w * (-0.5 * ((x - m) / s).powi(2)).exp() / (s * (2.0 * std::f64::consts::PI).sqrt()))
+        .map(|&(w, m, s)| {
+            w * (-0.5 * ((x - m) / s).powi(2)).exp() / (s * (2.0 * std::f64::consts::PI).sqrt())
+        })
         .sum()
 }
 
@@ -51,4 +67,3 @@ pub fn sample(comps: &[(f64, f64, f64)], n: usize, seed: u64) -> Vec<f64> {
         })
         .collect()
 }
-

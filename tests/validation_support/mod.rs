@@ -34,12 +34,25 @@ impl DrawSink for Collect {
 }
 
 /// Runs one chain from [`initial_state`] and returns its kept states (standard units).
-pub fn chain_states(z: &[f64], prior: &Prior, seed: u64, chain: u64, plan: ChainPlan) -> Vec<State> {
+pub fn chain_states(
+    z: &[f64],
+    prior: &Prior,
+    seed: u64,
+    chain: u64,
+    plan: ChainPlan,
+) -> Vec<State> {
     chain_from(z, prior, seed, chain, plan, None)
 }
 
 /// As [`chain_states`], optionally from a given starting state.
-pub fn chain_from(z: &[f64], prior: &Prior, seed: u64, chain: u64, plan: ChainPlan, start: Option<State>) -> Vec<State> {
+pub fn chain_from(
+    z: &[f64],
+    prior: &Prior,
+    seed: u64,
+    chain: u64,
+    plan: ChainPlan,
+    start: Option<State>,
+) -> Vec<State> {
     let key = StreamKey::new(seed, chain);
     let state = start.unwrap_or_else(|| initial_state(z, prior, &key));
     let start = Checkpoint {
@@ -65,7 +78,11 @@ impl PosteriorDensity {
     pub fn new(states: &[State], grid: &[f64], centre: f64, scale: f64) -> Self {
         let draws = states
             .iter()
-            .map(|s| grid.iter().map(|&x| s.density((x - centre) / scale) / scale).collect())
+            .map(|s| {
+                grid.iter()
+                    .map(|&x| s.density((x - centre) / scale) / scale)
+                    .collect()
+            })
             .collect();
         PosteriorDensity {
             grid: grid.to_vec(),
@@ -97,7 +114,14 @@ impl PosteriorDensity {
 /// Fits `x` (data units) with the defaults a user gets from a config with the given
 /// `[model]` and `[prior]` lines, running `chains` chains of `plan`; returns the posterior
 /// density on `grid`.
-pub fn fit_with_defaults(x: &[f64], model_and_prior: &str, seed: u64, chains: u64, plan: ChainPlan, grid: &[f64]) -> PosteriorDensity {
+pub fn fit_with_defaults(
+    x: &[f64],
+    model_and_prior: &str,
+    seed: u64,
+    chains: u64,
+    plan: ChainPlan,
+    grid: &[f64],
+) -> PosteriorDensity {
     let prep = prepare(x, model_and_prior);
     let mut states = Vec::new();
     for c in 1..=chains {
@@ -113,8 +137,13 @@ pub fn prepare(x: &[f64], model_and_prior: &str) -> Prepared {
         csv.push_str(&format!("{v:?}\n"));
     }
     let text = format!("[data]\nfile = \"memory.csv\"\ncolumn = \"x\"\n\n[sampler]\nseed = 1\n\n{model_and_prior}\n");
-    Prepared::from_text(&text, "validation", std::path::Path::new("."), Some(csv.as_bytes()))
-        .expect("validation config is valid")
+    Prepared::from_text(
+        &text,
+        "validation",
+        std::path::Path::new("."),
+        Some(csv.as_bytes()),
+    )
+    .expect("validation config is valid")
 }
 
 /// Sample sd with divisor n − 1.
@@ -137,13 +166,20 @@ pub fn silverman_bandwidth(x: &[f64]) -> f64 {
 pub fn kde(x: &[f64], h: f64, grid: &[f64]) -> Vec<f64> {
     let c = 1.0 / ((x.len() as f64) * h * (2.0 * std::f64::consts::PI).sqrt());
     grid.iter()
-        .map(|&g| c * x.iter().map(|&xi| (-0.5 * ((g - xi) / h).powi(2)).exp()).sum::<f64>())
+        .map(|&g| {
+            c * x
+                .iter()
+                .map(|&xi| (-0.5 * ((g - xi) / h).powi(2)).exp())
+                .sum::<f64>()
+        })
         .collect()
 }
 
 /// Trapezoid rule on an evenly or unevenly spaced grid.
 pub fn trapezoid(grid: &[f64], f: &[f64]) -> f64 {
-    (1..grid.len()).map(|i| 0.5 * (grid[i] - grid[i - 1]) * (f[i] + f[i - 1])).sum()
+    (1..grid.len())
+        .map(|i| 0.5 * (grid[i] - grid[i - 1]) * (f[i] + f[i - 1]))
+        .sum()
 }
 
 /// Integrated squared error ∫ (f − g)².
@@ -174,8 +210,17 @@ pub fn linspace(a: f64, b: f64, points: usize) -> Vec<f64> {
 
 /// Reads tests/reference/fixtures/`name`.
 pub fn fixture(name: &str) -> serde_json::Value {
-    let path: PathBuf = [env!("CARGO_MANIFEST_DIR"), "tests", "reference", "fixtures", name].iter().collect();
-    let text = std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("cannot read {}: {e}", path.display()));
+    let path: PathBuf = [
+        env!("CARGO_MANIFEST_DIR"),
+        "tests",
+        "reference",
+        "fixtures",
+        name,
+    ]
+    .iter()
+    .collect();
+    let text = std::fs::read_to_string(&path)
+        .unwrap_or_else(|e| panic!("cannot read {}: {e}", path.display()));
     serde_json::from_str(&text).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
 }
 
@@ -195,7 +240,9 @@ pub fn chi2_upper(p: f64, df: usize) -> f64 {
         .as_array()
         .unwrap()
         .iter()
-        .find(|q| (q["p"].as_f64().unwrap() - p).abs() < 1e-12 && q["df"].as_u64().unwrap() as usize == df)
+        .find(|q| {
+            (q["p"].as_f64().unwrap() - p).abs() < 1e-12 && q["df"].as_u64().unwrap() as usize == df
+        })
         .map(|q| q["quantile"].as_f64().unwrap())
         .unwrap_or_else(|| panic!("no chi-square quantile for p = {p}, df = {df} in the fixture"))
 }
