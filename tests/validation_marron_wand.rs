@@ -8,8 +8,8 @@
 //! and fitted with mixband's defaults (location-scale kernel, Dirichlet weights, K = 10)
 //! except one: the Dirichlet concentration is set to δ = 0.1 ([`PRIOR`]). With the current
 //! default δ = 1 the posterior mean is worse than the kernel estimate on densities #1 and #2
-//! (mean ISE ratios 1.52 and 1.53 over 4 replicates of 2000 sweeps; see docs/validation.md and the ignored
-//! test [`marron_wand_with_delta_one`]): a symmetric Dirichlet(1) on 10 components keeps
+//! (mean ISE ratios 1.52 and 1.53 over 4 replicates of 2000 sweeps; see docs/validation.md
+//! and the ignored test [`marron_wand_with_delta_one`]): a symmetric Dirichlet(1) on 10 components keeps
 //! superfluous components alive and the posterior mean wiggles. Rousseau & Mengersen (2011,
 //! "Asymptotic behaviour of the posterior distribution in overfitted mixture models",
 //! JRSS B 73(5)) show superfluous components empty out when δ < d/2, d the number of
