@@ -8,7 +8,7 @@
 pub mod allocate;
 pub mod chain;
 mod components;
-pub mod dirichlet_delta;
+pub mod concentration;
 mod hyper;
 mod init;
 pub mod label_moves;

@@ -1,9 +1,10 @@
-//! One Gibbs sweep: allocations, label-switching moves (stick-breaking weights), weights,
-//! component parameters, hyperparameters.
+//! One sweep: allocations, label-switching moves (stick-breaking weights), the
+//! concentration given the counts (weights integrated out), weights, component
+//! parameters, hyperparameters.
 
 use super::allocate::{allocate, ComponentTable};
 use super::components::update_components;
-use super::dirichlet_delta::update_delta;
+use super::concentration::update_concentration_given_counts;
 use super::hyper::{update_concentration, update_var_scale};
 use super::label_moves::{label_moves, MoveRatios, MoveTally, EXACT};
 use super::rng::StreamKey;
@@ -44,11 +45,11 @@ pub fn sweep_with(
         moves = label_moves(&mut alloc.stats, state, ratios, &mut key.label_rng(index));
     }
     let mut rng = key.sweep_rng(index);
+    update_concentration_given_counts(prior, &alloc.stats.n, state, &mut rng);
     update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
     update_components(prior, &alloc.stats, state, &mut rng);
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
-    update_delta(prior, state, &mut rng);
     SweepOutcome {
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
