@@ -34,13 +34,21 @@ fn densities() -> Vec<Density> {
     let comb = (0..6)
         .map(|l| {
             let l = l as f64;
-            (2f64.powf(5.0 - l) / 63.0, (65.0 - 96.0 * 0.5f64.powf(l)) / 21.0, (32.0 / 63.0) / 2f64.powf(l))
+            (
+                2f64.powf(5.0 - l) / 63.0,
+                (65.0 - 96.0 * 0.5f64.powf(l)) / 21.0,
+                (32.0 / 63.0) / 2f64.powf(l),
+            )
         })
         .collect();
     vec![
         Density {
             name: "MW2 skewed",
-            parts: vec![(0.2, 0.0, 1.0), (0.2, 0.5, 2.0 / 3.0), (0.6, 13.0 / 12.0, 5.0 / 9.0)],
+            parts: vec![
+                (0.2, 0.0, 1.0),
+                (0.2, 0.5, 2.0 / 3.0),
+                (0.6, 13.0 / 12.0, 5.0 / 9.0),
+            ],
         },
         Density {
             name: "MW6 bimodal",
@@ -50,7 +58,10 @@ fn densities() -> Vec<Density> {
             name: "MW8 asym bimodal",
             parts: vec![(0.75, 0.0, 1.0), (0.25, 1.5, 1.0 / 3.0)],
         },
-        Density { name: "MW14 smooth comb", parts: comb },
+        Density {
+            name: "MW14 smooth comb",
+            parts: comb,
+        },
     ]
 }
 
@@ -84,7 +95,12 @@ struct Variant {
 
 fn variants() -> Vec<Variant> {
     vec![
-        Variant { label: "dirichlet d=1 K=10", model: "weights = \"dirichlet\"", prior: "", sampler: "" },
+        Variant {
+            label: "dirichlet d=1 K=10",
+            model: "weights = \"dirichlet\"",
+            prior: "",
+            sampler: "",
+        },
         Variant {
             label: "dirichlet d~G(10,10K) K=10",
             model: "weights = \"dirichlet\"",
@@ -97,7 +113,12 @@ fn variants() -> Vec<Variant> {
             prior: "",
             sampler: "label_moves = false",
         },
-        Variant { label: "stick K=25 moves", model: "weights = \"stick-breaking\"", prior: "", sampler: "label_moves = true" },
+        Variant {
+            label: "stick K=25 moves",
+            model: "weights = \"stick-breaking\"",
+            prior: "",
+            sampler: "label_moves = true",
+        },
     ]
 }
 
@@ -184,7 +205,13 @@ fn run(prep: &Prepared) -> Figures {
     }
     let mut sorted = ess.clone();
     sorted.sort_by(f64::total_cmp);
-    let rate = |a: u64, p: u64| if p == 0 { f64::NAN } else { a as f64 / p as f64 };
+    let rate = |a: u64, p: u64| {
+        if p == 0 {
+            f64::NAN
+        } else {
+            a as f64 / p as f64
+        }
+    };
     Figures {
         min_ess: min_ess / n_kept,
         median_ess: sorted[g / 2] / n_kept,
@@ -200,7 +227,10 @@ fn run(prep: &Prepared) -> Figures {
 }
 
 fn env_usize(name: &str, default: usize) -> usize {
-    std::env::var(name).ok().and_then(|v| v.parse().ok()).unwrap_or(default)
+    std::env::var(name)
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(default)
 }
 
 fn print_row(label: &str, f: &Figures) {
@@ -225,10 +255,22 @@ fn main() {
     let warmup = env_usize("MIXING_WARMUP", 2000);
     let draws = env_usize("MIXING_DRAWS", 2000);
     let only = std::env::var("MIXING_ONLY").unwrap_or_default();
-    println!("mixing: n = 500, 4 chains x {draws} kept draws after {warmup} warm-up, 200-point grid");
+    println!(
+        "mixing: n = 500, 4 chains x {draws} kept draws after {warmup} warm-up, 200-point grid"
+    );
     println!(
         "{:<46} {:>7} {:>7} {:>7} {:>7} {:>7} {:>5} {:>6} {:>6} {:>7} {:>9}  worst gate quantity",
-        "data / weights", "minESS/", "medESS/", "maxRhat", "gateRh", "gateESS", "gate", "acc1", "acc2", "cpu s", "minESS/s"
+        "data / weights",
+        "minESS/",
+        "medESS/",
+        "maxRhat",
+        "gateRh",
+        "gateESS",
+        "gate",
+        "acc1",
+        "acc2",
+        "cpu s",
+        "minESS/s"
     );
     for (i, d) in densities().iter().enumerate() {
         let csv = sample_csv(d, 500, 1000 + i as u64);
@@ -244,14 +286,16 @@ fn main() {
                 77 + i,
                 v.sampler
             );
-            let prep = Prepared::from_text(&text, "bench", Path::new("."), Some(&csv)).expect("bench config");
+            let prep = Prepared::from_text(&text, "bench", Path::new("."), Some(&csv))
+                .expect("bench config");
             print_row(&label, &run(&prep));
         }
     }
     if "demo".contains(&only) || only.is_empty() {
         let text = include_str!("../configs/demo.toml");
         let data = include_bytes!("../demo-data/warbler-wings.csv");
-        let prep = Prepared::from_text(text, "configs/demo.toml", Path::new("."), Some(data)).expect("demo config");
+        let prep = Prepared::from_text(text, "configs/demo.toml", Path::new("."), Some(data))
+            .expect("demo config");
         print_row("demo (shipped config, as is)", &run(&prep));
     }
 }

@@ -53,7 +53,10 @@ fn dirichlet_count_likelihood_is_the_beta_binomial() {
     for (a, b) in [(0.01, 0.3), (0.3, 2.0), (0.05, 5.0)] {
         let ours = our_diff(WeightsKind::Dirichlet, &n, a, b);
         let theirs = reference(b) - reference(a);
-        assert!((ours - theirs).abs() < 1e-9 * theirs.abs().max(1.0), "{a}→{b}: {ours} vs {theirs}");
+        assert!(
+            (ours - theirs).abs() < 1e-9 * theirs.abs().max(1.0),
+            "{a}→{b}: {ours} vs {theirs}"
+        );
     }
 }
 
@@ -122,9 +125,16 @@ fn no_data_check(weights: WeightsKind) {
     let lag1 = {
         let mean = draws.iter().sum::<f64>() / m as f64;
         let v: f64 = draws.iter().map(|d| (d - mean) * (d - mean)).sum();
-        draws.windows(2).map(|w| (w[0] - mean) * (w[1] - mean)).sum::<f64>() / v
+        draws
+            .windows(2)
+            .map(|w| (w[0] - mean) * (w[1] - mean))
+            .sum::<f64>()
+            / v
     };
-    assert!(lag1 < 0.1, "{weights:?}: thinned draws still correlated: lag-1 {lag1:.3}");
+    assert!(
+        lag1 < 0.1,
+        "{weights:?}: thinned draws still correlated: lag-1 {lag1:.3}"
+    );
     let g = Gamma::new(shape, rate).unwrap();
     draws.sort_by(|a, b| a.total_cmp(b));
     let ks = draws
@@ -132,7 +142,9 @@ fn no_data_check(weights: WeightsKind) {
         .enumerate()
         .map(|(i, &d)| {
             let f = g.cdf(d);
-            (f - i as f64 / m as f64).abs().max(((i + 1) as f64 / m as f64 - f).abs())
+            (f - i as f64 / m as f64)
+                .abs()
+                .max(((i + 1) as f64 / m as f64 - f).abs())
         })
         .fold(0.0, f64::max);
     let limit = 1.95 / (m as f64).sqrt();
@@ -143,16 +155,37 @@ fn no_data_check(weights: WeightsKind) {
 fn dirichlet_sweep_with_delta_prior_passes_the_joint_distribution_test() {
     let p = prior(2.0, 4.0, 4);
     let fns = vec![
-        TestFn { name: "delta", f: |s, _| s.concentration },
-        TestFn { name: "ln delta", f: |s, _| s.concentration.ln() },
-        TestFn { name: "w_1", f: |s, _| s.log_w[0].exp() },
-        TestFn { name: "sum w^2", f: |s, _| s.weights().iter().map(|w| w * w).sum() },
-        TestFn { name: "E[n_1]", f: |s, y| expected_count(s, y, 0) },
-        TestFn { name: "mu_1", f: |s, _| s.mu[0] },
-        TestFn { name: "data sd", f: |_, y| {
-            let m = y.iter().sum::<f64>() / y.len() as f64;
-            (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / y.len() as f64).sqrt()
-        } },
+        TestFn {
+            name: "delta",
+            f: |s, _| s.concentration,
+        },
+        TestFn {
+            name: "ln delta",
+            f: |s, _| s.concentration.ln(),
+        },
+        TestFn {
+            name: "w_1",
+            f: |s, _| s.log_w[0].exp(),
+        },
+        TestFn {
+            name: "sum w^2",
+            f: |s, _| s.weights().iter().map(|w| w * w).sum(),
+        },
+        TestFn {
+            name: "E[n_1]",
+            f: |s, y| expected_count(s, y, 0),
+        },
+        TestFn {
+            name: "mu_1",
+            f: |s, _| s.mu[0],
+        },
+        TestFn {
+            name: "data sd",
+            f: |_, y| {
+                let m = y.iter().sum::<f64>() / y.len() as f64;
+                (y.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / y.len() as f64).sqrt()
+            },
+        },
     ];
     let plan = Plan {
         n_obs: 12,
@@ -167,5 +200,9 @@ fn dirichlet_sweep_with_delta_prior_passes_the_joint_distribution_test() {
     let cmp = geweke::run(&p, plan, &fns, &run);
     let limit = bonferroni_threshold(0.01, fns.len());
     let worst = cmp.iter().map(|c| c.z.abs()).fold(0.0, f64::max);
-    assert!(worst < limit, "|z| {worst:.2} ≥ {limit:.2}\n{}", table(&cmp));
+    assert!(
+        worst < limit,
+        "|z| {worst:.2} ≥ {limit:.2}\n{}",
+        table(&cmp)
+    );
 }

@@ -13,7 +13,9 @@ mod geweke;
 use geweke::{bonferroni_threshold, expected_count, table, Plan, TestFn};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::model::{Concentration, Prior, State, VarScale};
-use mixband::sampler::label_moves::{log_ratio_swap_adjacent, log_ratio_swap_labels, MoveRatios, EXACT};
+use mixband::sampler::label_moves::{
+    log_ratio_swap_adjacent, log_ratio_swap_labels, MoveRatios, EXACT,
+};
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::sweep_with;
 
@@ -26,24 +28,60 @@ fn prior(kernel: Kernel) -> Prior {
         centre_sd: 2.0,
         centre_shrink: 0.25,
         var_shape: 3.0,
-        var_scale: VarScale::Gamma { shape: 4.0, rate: 4.0 },
-        concentration: Concentration::Gamma { shape: 2.0, rate: 2.0 },
+        var_scale: VarScale::Gamma {
+            shape: 4.0,
+            rate: 4.0,
+        },
+        concentration: Concentration::Gamma {
+            shape: 2.0,
+            rate: 2.0,
+        },
         label_moves: true,
     }
 }
 
 fn test_fns() -> Vec<TestFn> {
     vec![
-        TestFn { name: "w_1", f: |s, _| s.log_w[0].exp() },
-        TestFn { name: "w_2", f: |s, _| s.log_w[1].exp() },
-        TestFn { name: "E[n_1]", f: |s, y| expected_count(s, y, 0) },
-        TestFn { name: "E[n_2]", f: |s, y| expected_count(s, y, 1) },
-        TestFn { name: "mu_1", f: |s, _| s.mu[0] },
-        TestFn { name: "alpha", f: |s, _| s.concentration },
-        TestFn { name: "sum w^2", f: |s, _| s.weights().iter().map(|w| w * w).sum() },
-        TestFn { name: "mix mean", f: |s, _| s.weights().iter().zip(&s.mu).map(|(w, m)| w * m).sum() },
-        TestFn { name: "ln var_1", f: |s, _| s.var[0].ln() },
-        TestFn { name: "data mean", f: |_, y| y.iter().sum::<f64>() / y.len() as f64 },
+        TestFn {
+            name: "w_1",
+            f: |s, _| s.log_w[0].exp(),
+        },
+        TestFn {
+            name: "w_2",
+            f: |s, _| s.log_w[1].exp(),
+        },
+        TestFn {
+            name: "E[n_1]",
+            f: |s, y| expected_count(s, y, 0),
+        },
+        TestFn {
+            name: "E[n_2]",
+            f: |s, y| expected_count(s, y, 1),
+        },
+        TestFn {
+            name: "mu_1",
+            f: |s, _| s.mu[0],
+        },
+        TestFn {
+            name: "alpha",
+            f: |s, _| s.concentration,
+        },
+        TestFn {
+            name: "sum w^2",
+            f: |s, _| s.weights().iter().map(|w| w * w).sum(),
+        },
+        TestFn {
+            name: "mix mean",
+            f: |s, _| s.weights().iter().zip(&s.mu).map(|(w, m)| w * m).sum(),
+        },
+        TestFn {
+            name: "ln var_1",
+            f: |s, _| s.var[0].ln(),
+        },
+        TestFn {
+            name: "data mean",
+            f: |_, y| y.iter().sum::<f64>() / y.len() as f64,
+        },
     ]
 }
 
@@ -88,7 +126,10 @@ fn joint_test_rejects_an_inverted_label_swap_ratio() {
     };
     let limit = bonferroni_threshold(0.01, test_fns().len());
     let (z, t) = worst(Kernel::LocationScale, wrong);
-    assert!(z > limit, "wrong swap ratio not detected: |z| {z:.2} < {limit:.2}\n{t}");
+    assert!(
+        z > limit,
+        "wrong swap ratio not detected: |z| {z:.2} < {limit:.2}\n{t}"
+    );
 }
 
 #[test]
@@ -100,5 +141,8 @@ fn joint_test_rejects_an_adjacent_swap_that_ignores_the_sticks() {
     };
     let limit = bonferroni_threshold(0.01, test_fns().len());
     let (z, t) = worst(Kernel::LocationScale, wrong);
-    assert!(z > limit, "wrong adjacent ratio not detected: |z| {z:.2} < {limit:.2}\n{t}");
+    assert!(
+        z > limit,
+        "wrong adjacent ratio not detected: |z| {z:.2} < {limit:.2}\n{t}"
+    );
 }

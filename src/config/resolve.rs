@@ -166,8 +166,8 @@ pub fn resolve(
 
     let s = raw.sampler.clone().unwrap_or_default();
     let chains = ck.int_at_least("sampler", "chains", s.chains, 1, 4)?;
-    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 1000)?;
-    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 1000)?;
+    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 2000)?;
+    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 5000)?;
     let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
     let seed = match s.seed {
         Some(v) if v < 0 => return Err(ck.fail("sampler", "seed", format!("must be a non-negative integer, got {v}"))),

@@ -83,7 +83,11 @@ pub fn label_moves<R: Rng + ?Sized>(
 ) -> MoveTally {
     let k = state.k();
     let mut tally = MoveTally::default();
-    debug_assert_eq!(state.log_v.len(), k, "label moves need stick-breaking weights");
+    debug_assert_eq!(
+        state.log_v.len(),
+        k,
+        "label moves need stick-breaking weights"
+    );
 
     // Move 1. Swapping two occupied components leaves the set of occupied labels as it
     // was, so drawing the pair from that set is a symmetric proposal.
@@ -97,7 +101,12 @@ pub fn label_moves<R: Rng + ?Sized>(
                 l += 1;
             }
             let (a, b) = (occupied[i], occupied[l]);
-            let log_r = (ratios.swap_labels)(stats.n[a] as f64, stats.n[b] as f64, state.log_w[a], state.log_w[b]);
+            let log_r = (ratios.swap_labels)(
+                stats.n[a] as f64,
+                stats.n[b] as f64,
+                state.log_w[a],
+                state.log_w[b],
+            );
             tally.labels_proposed += 1;
             if accept(log_r, rng) {
                 swap_components(stats, state, a, b);
@@ -111,8 +120,12 @@ pub fn label_moves<R: Rng + ?Sized>(
         for _ in 0..k - 2 {
             let a = rng.random_range(0..k - 2);
             let b = a + 1;
-            let log_r =
-                (ratios.swap_adjacent)(stats.n[a] as f64, stats.n[b] as f64, state.log_1mv[a], state.log_1mv[b]);
+            let log_r = (ratios.swap_adjacent)(
+                stats.n[a] as f64,
+                stats.n[b] as f64,
+                state.log_1mv[a],
+                state.log_1mv[b],
+            );
             tally.adjacent_proposed += 1;
             if accept(log_r, rng) {
                 swap_components(stats, state, a, b);
@@ -136,7 +149,10 @@ mod tests {
         let mut s = State {
             log_w: vec![0.0; k],
             log_v: v.iter().map(|x| x.ln()).collect(),
-            log_1mv: v.iter().map(|x| if *x < 1.0 { (1.0 - x).ln() } else { 0.0 }).collect(),
+            log_1mv: v
+                .iter()
+                .map(|x| if *x < 1.0 { (1.0 - x).ln() } else { 0.0 })
+                .collect(),
             mu: (0..k).map(|j| j as f64).collect(),
             var: (0..k).map(|j| 1.0 + j as f64).collect(),
             concentration: 1.0,
@@ -172,8 +188,16 @@ mod tests {
             n2.swap(a, a + 1);
             let after = stick_state(&v2);
             let direct = log_pz(&after, &n2) - log_pz(&before, &n);
-            let formula = log_ratio_swap_adjacent(n[a] as f64, n[a + 1] as f64, before.log_1mv[a], before.log_1mv[a + 1]);
-            assert!((direct - formula).abs() < 1e-12, "pair {a}: {direct} vs {formula}");
+            let formula = log_ratio_swap_adjacent(
+                n[a] as f64,
+                n[a + 1] as f64,
+                before.log_1mv[a],
+                before.log_1mv[a + 1],
+            );
+            assert!(
+                (direct - formula).abs() < 1e-12,
+                "pair {a}: {direct} vs {formula}"
+            );
         }
     }
 
@@ -185,7 +209,8 @@ mod tests {
         let mut n2 = n;
         n2.swap(a, b);
         let direct = log_pz(&state, &n2) - log_pz(&state, &n);
-        let formula = log_ratio_swap_labels(n[a] as f64, n[b] as f64, state.log_w[a], state.log_w[b]);
+        let formula =
+            log_ratio_swap_labels(n[a] as f64, n[b] as f64, state.log_w[a], state.log_w[b]);
         assert!((direct - formula).abs() < 1e-12);
     }
 

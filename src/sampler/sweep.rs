@@ -24,7 +24,13 @@ pub struct SweepOutcome {
 }
 
 /// Advances `state` by one sweep numbered `index` (from 1).
-pub fn sweep(x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, index: u64) -> SweepOutcome {
+pub fn sweep(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+) -> SweepOutcome {
     sweep_with(x, prior, state, key, index, &EXACT)
 }
 

@@ -85,7 +85,10 @@ pub fn run(
             let (ma, va) = mean_var(a);
             let (mb, _) = mean_var(b);
             let size = b.len() / plan.batches;
-            let batch_means: Vec<f64> = b.chunks_exact(size).map(|c| c.iter().sum::<f64>() / size as f64).collect();
+            let batch_means: Vec<f64> = b
+                .chunks_exact(size)
+                .map(|c| c.iter().sum::<f64>() / size as f64)
+                .collect();
             let (_, vbm) = mean_var(&batch_means);
             let se = (va / a.len() as f64 + vbm / batch_means.len() as f64).sqrt();
             Comparison {
@@ -107,7 +110,12 @@ pub fn bonferroni_threshold(level: f64, tests: usize) -> f64 {
 /// Human-readable table of the comparisons.
 pub fn table(cmp: &[Comparison]) -> String {
     cmp.iter()
-        .map(|c| format!("{:>14}: MC {:+.5}  SC {:+.5}  z {:+.2}\n", c.name, c.mean_mc, c.mean_sc, c.z))
+        .map(|c| {
+            format!(
+                "{:>14}: MC {:+.5}  SC {:+.5}  z {:+.2}\n",
+                c.name, c.mean_mc, c.mean_sc, c.z
+            )
+        })
         .collect()
 }
 
