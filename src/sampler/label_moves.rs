@@ -166,10 +166,10 @@ mod tests {
     fn log_pz(state: &State, n: &[u64]) -> f64 {
         let mut acc = 0.0;
         let mut total = 0.0;
-        for j in 0..n.len() {
+        for (j, &c) in n.iter().enumerate() {
             let w = state.log_v[j] + acc;
             acc += state.log_1mv[j];
-            total += n[j] as f64 * w;
+            total += c as f64 * w;
         }
         total
     }

@@ -48,14 +48,12 @@ fn mean_var(xs: &[f64]) -> (f64, f64) {
     (m, v)
 }
 
+/// One sweep of the posterior sampler: (data, prior, state, stream key, sweep number).
+pub type Sweep<'a> = &'a dyn Fn(&[f64], &Prior, &mut State, &StreamKey, u64);
+
 /// Runs both simulators and compares every test function. `sweep` advances the state by
 /// one sweep given the data, the stream key and the sweep number.
-pub fn run(
-    prior: &Prior,
-    plan: Plan,
-    fns: &[TestFn],
-    sweep: &dyn Fn(&[f64], &Prior, &mut State, &StreamKey, u64),
-) -> Vec<Comparison> {
+pub fn run(prior: &Prior, plan: Plan, fns: &[TestFn], sweep: Sweep<'_>) -> Vec<Comparison> {
     // Marginal-conditional.
     let mut rng = ChaCha8Rng::seed_from_u64(plan.seed);
     let mut mc: Vec<Vec<f64>> = vec![Vec::with_capacity(plan.mc_draws); fns.len()];
