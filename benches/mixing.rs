@@ -296,6 +296,6 @@ fn main() {
         let data = include_bytes!("../demo-data/warbler-wings.csv");
         let prep = Prepared::from_text(text, "configs/demo.toml", Path::new("."), Some(data))
             .expect("demo config");
-        print_row("demo (shipped config, as is)", &run(&prep));
+        print_row("demo (shipped config, default run length)", &run(&prep));
     }
 }
