@@ -193,7 +193,10 @@ fn run(prep: &Prepared) -> Figures {
     }
     let min_ess = ess.iter().copied().fold(f64::INFINITY, f64::min);
     let (mut gate_rhat, mut gate_ess) = (max_rhat, min_ess);
-    let mut worst = format!("density ESS {min_ess:.0}");
+    let at = ess.iter().position(|&e| e == min_ess).unwrap_or(0);
+    // Where the lowest density ESS sits, as a quantile of the sample (0 = minimum, 1 = maximum).
+    let (lo, hi) = (prep.data.summary.min, prep.data.summary.max);
+    let mut worst = format!("density ESS {min_ess:.0} at x = {:.2} ({:+.2} of the data range)", grid[at], (grid[at] - lo) / (hi - lo));
     for (i, name) in ["loglik", "occupied", "concentration"].iter().enumerate() {
         let refs: Vec<&[f64]> = scalars.iter().map(|sc| sc[i].as_slice()).collect();
         let d = scalar_diagnostics(&refs).expect("scalar diagnostics");
