@@ -5,7 +5,7 @@ use std::path::Path;
 use super::SampleOpts;
 use crate::error::{Error, Result};
 use crate::run::{execute, ExecOptions, Mode, Prepared};
-use crate::store::RunLayout;
+use crate::store::{Manifest, RunLayout, RunStatus};
 
 pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
     let threads = opts
@@ -19,7 +19,10 @@ pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
 }
 
 pub(super) fn sample(config: &Path, out: &Path, force: bool, opts: &SampleOpts) -> Result<i32> {
-    let prep = Prepared::from_config_file(config)?;
+    let mut prep = Prepared::from_config_file(config)?;
+    // The resolved config lives in the run directory, so it names the data by absolute
+    // path: `resume`, `extend` and `bands` read it from there.
+    prep.config.data_file_text = prep.record.file.clone();
     finish(&prep, out, Mode::Fresh { force }, opts, &[])
 }
 
@@ -73,25 +76,53 @@ pub(super) fn finish(
 }
 
 pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) -> Result<i32> {
+    if extra_draws == Some(0) {
+        return Err(Error::input("--draws must be at least 1"));
+    }
     let layout = RunLayout::new(run);
     let cfg_path = layout.config();
-    if !cfg_path.exists() {
-        return Err(Error::input(format!("{}: no config.toml; is this a mixband run directory?", run.display())));
+    if !cfg_path.exists() || !layout.manifest().exists() {
+        return Err(Error::input(format!(
+            "{}: no config.toml and manifest.json; is this a mixband run directory?",
+            run.display()
+        )));
     }
+    let manifest = Manifest::read(&layout.manifest())?;
     let mut prep = Prepared::from_config_file(&cfg_path)?;
-    if let Some(n) = extra_draws {
-        if n == 0 {
-            return Err(Error::input("--draws must be at least 1"));
+    let now = serde_json::to_value(prep.config.to_raw())
+        .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
+    if now != manifest.config {
+        return Err(Error::input(format!(
+            "{} no longer matches the config recorded in {}; a run continues only with the \
+             config it started with (start a new run for a changed config)",
+            cfg_path.display(),
+            layout.manifest().display()
+        )));
+    }
+    match extra_draws {
+        Some(n) => {
+            if manifest.status != RunStatus::Complete {
+                return Err(Error::input(format!(
+                    "{} is incomplete; run `mixband resume {}` before extending it",
+                    run.display(),
+                    run.display()
+                )));
+            }
+            prep.config.draws = prep
+                .config
+                .draws
+                .checked_add(n)
+                .filter(|&d| d <= 1_000_000_000)
+                .ok_or_else(|| Error::input(format!("--draws {n} makes the run too long")))?;
         }
-        let manifest = crate::store::Manifest::read(&layout.manifest())?;
-        if manifest.status != crate::store::RunStatus::Complete {
-            return Err(Error::input(format!(
-                "{} is incomplete; run `mixband resume {}` before extending it",
-                run.display(),
+        None if manifest.status == RunStatus::Complete => {
+            eprintln!(
+                "mixband: {} is already complete; nothing to resume (use `mixband extend` for more draws)",
                 run.display()
-            )));
+            );
+            return Ok(0);
         }
-        prep.config.draws += n;
+        None => {}
     }
     finish(&prep, run, Mode::Resume, opts, &[])
 }
