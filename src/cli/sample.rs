@@ -8,9 +8,11 @@ use crate::run::{execute, ExecOptions, Mode, Prepared};
 use crate::store::{Manifest, RunLayout, RunStatus};
 
 pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
-    let threads = opts
-        .threads
-        .unwrap_or_else(|| std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1));
+    let threads = opts.threads.unwrap_or_else(|| {
+        std::thread::available_parallelism()
+            .map(|n| n.get())
+            .unwrap_or(1)
+    });
     ExecOptions {
         threads: threads.max(1),
         quiet: opts.quiet || !std::io::IsTerminal::is_terminal(&std::io::stderr()),

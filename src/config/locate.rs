@@ -33,13 +33,14 @@ pub fn key_line(text: &str, section: &str, key: &str) -> Option<usize> {
 
 /// 1-based line of the `[section]` header, if any.
 pub fn section_line(text: &str, section: &str) -> Option<usize> {
-    text.lines().position(|line| {
-        let t = strip_comment(line).trim();
-        t.strip_prefix('[')
-            .and_then(|r| r.split(']').next())
-            .is_some_and(|name| unquote(name.trim()) == section)
-    })
-    .map(|i| i + 1)
+    text.lines()
+        .position(|line| {
+            let t = strip_comment(line).trim();
+            t.strip_prefix('[')
+                .and_then(|r| r.split(']').next())
+                .is_some_and(|name| unquote(name.trim()) == section)
+        })
+        .map(|i| i + 1)
 }
 
 fn unquote(s: &str) -> &str {

@@ -13,9 +13,8 @@ use crate::error::{Error, Result};
 /// Reads and parses a config file. Errors name the file and, from the TOML parser, the
 /// line and column.
 pub fn parse_config_file(path: &Path) -> Result<(RawConfig, String)> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Error::input(format!("cannot read config file {}: {e}", path.display()))
-    })?;
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Error::input(format!("cannot read config file {}: {e}", path.display())))?;
     let raw = parse_config_str(&text, &path.display().to_string())?;
     Ok((raw, text))
 }
@@ -112,11 +111,22 @@ impl Checker<'_> {
         let place = section_line(self.text, section)
             .map(|l| format!(" (section starts at line {l})"))
             .unwrap_or_else(|| format!(" (add a [{section}] section)"));
-        Error::input(format!("{}: missing required key [{section}] {key}{place}", self.origin))
+        Error::input(format!(
+            "{}: missing required key [{section}] {key}{place}",
+            self.origin
+        ))
     }
 
     #[allow(clippy::too_many_arguments)]
-    fn int_in(&self, section: &str, key: &str, v: Option<i64>, min: i64, max: i64, default: i64) -> Result<usize> {
+    fn int_in(
+        &self,
+        section: &str,
+        key: &str,
+        v: Option<i64>,
+        min: i64,
+        max: i64,
+        default: i64,
+    ) -> Result<usize> {
         let v = v.unwrap_or(default);
         if v < min {
             return Err(self.fail(section, key, format!("must be at least {min}, got {v}")));
@@ -129,16 +139,20 @@ impl Checker<'_> {
 
     fn positive(&self, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !(x.is_finite() && x > 0.0) => {
-                Err(self.fail("prior", key, format!("must be a positive finite number, got {x}")))
-            }
+            Some(x) if !(x.is_finite() && x > 0.0) => Err(self.fail(
+                "prior",
+                key,
+                format!("must be a positive finite number, got {x}"),
+            )),
             other => Ok(other),
         }
     }
 
     fn finite(&self, section: &str, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !x.is_finite() => Err(self.fail(section, key, format!("must be finite, got {x}"))),
+            Some(x) if !x.is_finite() => {
+                Err(self.fail(section, key, format!("must be finite, got {x}")))
+            }
             other => Ok(other),
         }
     }
@@ -158,11 +172,17 @@ pub fn resolve(
 ) -> Result<RunConfig> {
     let ck = Checker { text, origin };
     let data = raw.data.clone().unwrap_or_default();
-    let file = data.file.clone().ok_or_else(|| ck.missing("data", "file"))?;
+    let file = data
+        .file
+        .clone()
+        .ok_or_else(|| ck.missing("data", "file"))?;
     if file.trim().is_empty() {
         return Err(ck.fail("data", "file", "must not be empty".into()));
     }
-    let column = data.column.clone().ok_or_else(|| ck.missing("data", "column"))?;
+    let column = data
+        .column
+        .clone()
+        .ok_or_else(|| ck.missing("data", "column"))?;
     if column.trim().is_empty() {
         return Err(ck.fail("data", "column", "must not be empty".into()));
     }
@@ -193,11 +213,20 @@ pub fn resolve(
         return Err(ck.fail(
             "sampler",
             "draws",
-            format!("asks for warmup + draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}", warmup + draws * thin),
+            format!(
+                "asks for warmup + draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}",
+                warmup + draws * thin
+            ),
         ));
     }
     let seed = match s.seed {
-        Some(v) if v < 0 => return Err(ck.fail("sampler", "seed", format!("must be a non-negative integer, got {v}"))),
+        Some(v) if v < 0 => {
+            return Err(ck.fail(
+                "sampler",
+                "seed",
+                format!("must be a non-negative integer, got {v}"),
+            ))
+        }
         Some(v) => v as u64,
         None => fresh_seed(),
     };
@@ -221,7 +250,11 @@ pub fn resolve(
     let points = ck.int_in("grid", "points", g.points, 2, MAX_POINTS, 200)?;
     if let (Some(a), Some(b)) = (from, to) {
         if a >= b {
-            return Err(ck.fail("grid", "from", format!("must be below [grid] to, got from = {a}, to = {b}")));
+            return Err(ck.fail(
+                "grid",
+                "from",
+                format!("must be below [grid] to, got from = {a}, to = {b}"),
+            ));
         }
     }
 
@@ -235,11 +268,19 @@ pub fn resolve(
     let gate = raw.gate.clone().unwrap_or_default();
     let max_rhat = gate.max_rhat.unwrap_or(1.01);
     if !(max_rhat.is_finite() && max_rhat > 1.0) {
-        return Err(ck.fail("gate", "max_rhat", format!("must be a finite number above 1, got {max_rhat}")));
+        return Err(ck.fail(
+            "gate",
+            "max_rhat",
+            format!("must be a finite number above 1, got {max_rhat}"),
+        ));
     }
     let min_ess = gate.min_ess.unwrap_or(400.0);
     if !(min_ess.is_finite() && min_ess > 0.0) {
-        return Err(ck.fail("gate", "min_ess", format!("must be a positive finite number, got {min_ess}")));
+        return Err(ck.fail(
+            "gate",
+            "min_ess",
+            format!("must be a positive finite number, got {min_ess}"),
+        ));
     }
     let min_chains = ck.int_in("gate", "min_chains", gate.min_chains, 1, MAX_CHAINS, 2)?;
 

@@ -92,7 +92,13 @@ impl DataSummary {
                 fmt_f64(magnitude)
             )));
         }
-        Ok(DataSummary { n, mean, sd, min, max })
+        Ok(DataSummary {
+            n,
+            mean,
+            sd,
+            min,
+            max,
+        })
     }
 }
 
@@ -103,9 +109,16 @@ impl Standardised {
         let (centre, scale) = (summary.mean, summary.sd);
         let z: Vec<f64> = x.iter().map(|&v| (v - centre) / scale).collect();
         if z.iter().any(|v| !v.is_finite()) {
-            return Err(Error::input(format!("{origin}: the data cannot be standardised in double precision")));
+            return Err(Error::input(format!(
+                "{origin}: the data cannot be standardised in double precision"
+            )));
         }
-        Ok(Standardised { z, centre, scale, summary })
+        Ok(Standardised {
+            z,
+            centre,
+            scale,
+            summary,
+        })
     }
 
     /// Map a location from standard units back to data units.
@@ -149,13 +162,19 @@ mod tests {
     #[test]
     fn refuses_spreads_that_leave_double_precision() {
         // Range 1e160: its square overflows.
-        let e = DataSummary::of(&[0.0, 1e160, 5e159], "t").unwrap_err().to_string();
+        let e = DataSummary::of(&[0.0, 1e160, 5e159], "t")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("span from 0 to 1e160"), "{e}");
         // sd ~ 1e-160: its square underflows.
-        let e = DataSummary::of(&[0.0, 1e-160, 2e-160], "t").unwrap_err().to_string();
+        let e = DataSummary::of(&[0.0, 1e-160, 2e-160], "t")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("standard deviation"), "{e}");
         // Values that differ in the last bit only.
-        let e = DataSummary::of(&[1.0, 1.0 + f64::EPSILON, 1.0], "t").unwrap_err().to_string();
+        let e = DataSummary::of(&[1.0, 1.0 + f64::EPSILON, 1.0], "t")
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("last few digits"), "{e}");
         // 1e150 offset with a spread of 1e140 is accepted and standardises to O(1).
         let x: Vec<f64> = (0..50).map(|i| 1e150 + (i as f64) * 1e140).collect();
