@@ -45,6 +45,9 @@ pub struct RunOutcome {
     pub interrupted: bool,
 }
 
+/// How one chain's thread ended: its stop, draws written and seconds spent.
+type ChainResult = Result<(ChainStop, u64, f64)>;
+
 /// Prepares the directory for a fresh run.
 fn claim_directory(dir: &Path, force: bool) -> Result<()> {
     if dir.exists() && !dir.is_dir() {
@@ -169,8 +172,7 @@ pub fn execute(
     .unwrap_or_else(|_| ProgressStyle::default_bar());
 
     let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
-    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> =
-        jobs.iter().map(|_| Mutex::new(None)).collect();
+    let results: Vec<Mutex<Option<ChainResult>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
     let next = AtomicUsize::new(0);
     let workers = opts.threads.max(1).min(jobs.len().max(1));
     let chains = manifest.chains.clone();
