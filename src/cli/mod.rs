@@ -148,7 +148,9 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         if STOP.swap(true, std::sync::atomic::Ordering::SeqCst) {
             std::process::exit(130);
         }
-        eprintln!("mixband: stopping after the current sweep and saving; Ctrl-C again quits at once");
+        eprintln!(
+            "mixband: stopping after the current sweep and saving; Ctrl-C again quits at once"
+        );
     });
     match run(cli) {
         Ok(code) => code,

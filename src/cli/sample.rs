@@ -21,10 +21,7 @@ pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
 }
 
 pub(super) fn sample(config: &Path, out: &Path, force: bool, opts: &SampleOpts) -> Result<i32> {
-    let mut prep = Prepared::from_config_file(config)?;
-    // The resolved config lives in the run directory, so it names the data by absolute
-    // path: `resume`, `extend` and `bands` read it from there.
-    prep.config.data_file_text = prep.record.file.clone();
+    let prep = Prepared::from_config_file(config)?;
     finish(&prep, out, Mode::Fresh { force }, opts, &[])
 }
 
@@ -91,9 +88,17 @@ pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) 
     }
     let manifest = Manifest::read(&layout.manifest())?;
     let mut prep = Prepared::from_config_file(&cfg_path)?;
+    // The data file is compared by its SHA-256 (in `execute`); its path may be written
+    // differently (the demo's copy is relative to the run directory).
+    let without_path = |mut v: serde_json::Value| {
+        if let Some(d) = v.get_mut("data").and_then(|d| d.as_object_mut()) {
+            d.remove("file");
+        }
+        v
+    };
     let now = serde_json::to_value(prep.config.to_raw())
         .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
-    if now != manifest.config {
+    if without_path(now) != without_path(manifest.config.clone()) {
         return Err(Error::input(format!(
             "{} no longer matches the config recorded in {}; a run continues only with the \
              config it started with (start a new run for a changed config)",
