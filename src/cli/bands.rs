@@ -4,7 +4,7 @@ use std::path::Path;
 
 use crate::config::resolve_check_levels;
 use crate::error::{Error, Result};
-use crate::run::{write_bands, Prepared};
+use crate::run::{write_bands, write_summaries, Prepared};
 use crate::store::{read_run_draws, Manifest, RunLayout};
 use crate::summary::{linspace, Bands, DensityDraws};
 
@@ -23,7 +23,8 @@ fn write_for_grid(layout: &RunLayout, from: f64, to: f64, points: usize, levels:
     let grid = linspace(from, to, points);
     let dens = DensityDraws::new(&draws, &grid);
     let bands = Bands::new(&dens, levels);
-    write_bands(layout, &bands, None)
+    write_bands(layout, &bands, None)?;
+    write_summaries(layout, &draws, &dens, &bands, None)
 }
 
 pub(super) fn bands(
@@ -48,6 +49,12 @@ pub(super) fn bands(
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
     write_for_grid(&layout, from, to, points, &levels)?;
-    println!("mixband: wrote {} and {}", layout.bands_csv().display(), layout.bands_json().display());
+    println!(
+        "mixband: wrote {}, {}, {} and {}",
+        layout.bands_csv().display(),
+        layout.bands_json().display(),
+        layout.cdf_csv().display(),
+        layout.summary_json().display()
+    );
     Ok(0)
 }

@@ -13,7 +13,8 @@ pub fn mixture_density(row: &DrawRow, x: f64) -> f64 {
     f
 }
 
-/// Densities of every draw on a grid: `values[(c * draws + d) * grid + g]`.
+/// A curve of every draw on a grid (the density, or the CDF built by
+/// [`super::cdf::cdf_draws`]): `values[(c * draws + d) * grid + g]`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DensityDraws {
     pub grid: Vec<f64>,
@@ -26,12 +27,17 @@ pub struct DensityDraws {
 impl DensityDraws {
     /// Evaluates every draw of `run` (cut to the shortest chain) on `grid`.
     pub fn new(run: &RunDraws, grid: &[f64]) -> Self {
+        Self::from_fn(run, grid, mixture_density)
+    }
+
+    /// Evaluates `curve(draw, x)` for every draw of `run` (cut to the shortest chain).
+    pub fn from_fn(run: &RunDraws, grid: &[f64], curve: impl Fn(&DrawRow, f64) -> f64) -> Self {
         let draws = run.min_len();
         let g = grid.len();
         let mut values = Vec::with_capacity(run.chains.len() * draws * g);
         for c in &run.chains {
             for row in &c.rows[..draws] {
-                values.extend(grid.iter().map(|&x| mixture_density(row, x)));
+                values.extend(grid.iter().map(|&x| curve(row, x)));
             }
         }
         DensityDraws {
