@@ -3,6 +3,7 @@
 use std::path::Path;
 
 use crate::config::resolve_check_levels;
+use crate::data::Transform;
 use crate::error::{Error, Result};
 use crate::run::{write_bands, write_summaries, Prepared};
 use crate::store::{read_run_draws, Manifest, RunLayout};
@@ -11,20 +12,27 @@ use crate::summary::{linspace, Bands, DensityDraws};
 /// Reads the draws of a run and writes bands.csv / bands.json on the configured grid.
 pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<()> {
     let c = &prep.config;
-    write_for_grid(layout, c.grid_from, c.grid_to, c.grid_points, &c.levels)
+    write_for_grid(layout, c.grid_from, c.grid_to, c.grid_points, &c.levels, c.transform)
 }
 
-fn write_for_grid(layout: &RunLayout, from: f64, to: f64, points: usize, levels: &[f64]) -> Result<()> {
+fn write_for_grid(
+    layout: &RunLayout,
+    from: f64,
+    to: f64,
+    points: usize,
+    levels: &[f64],
+    t: Transform,
+) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
     if draws.min_len() == 0 {
         return Err(Error::input(format!("{}: no draws stored yet", layout.root.display())));
     }
     let grid = linspace(from, to, points);
-    let dens = DensityDraws::new(&draws, &grid);
+    let dens = DensityDraws::new_on(&draws, &grid, t);
     let bands = Bands::new(&dens, levels);
     write_bands(layout, &bands, None)?;
-    write_summaries(layout, &draws, &dens, &bands, None)
+    write_summaries(layout, &draws, &dens, &bands, t, None)
 }
 
 pub(super) fn bands(
@@ -48,7 +56,7 @@ pub(super) fn bands(
         return Err(Error::input(format!("--from must be below --to, got {from} and {to}")));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
-    write_for_grid(&layout, from, to, points, &levels)?;
+    write_for_grid(&layout, from, to, points, &levels, c.transform)?;
     println!(
         "mixband: wrote {}, {}, {} and {}",
         layout.bands_csv().display(),

@@ -14,6 +14,8 @@ pub struct Sample {
     pub values: Vec<f64>,
     /// Number of empty cells dropped under `missing = "drop"`.
     pub dropped: usize,
+    /// (file line, data row) of each value, for messages about individual values.
+    pub origins: Vec<(u64, usize)>,
 }
 
 /// Loads column `column` of the CSV file at `path`.
@@ -53,6 +55,7 @@ pub fn load_column_from_reader<R: Read>(
     let mut dropped = 0;
     let mut record = csv::StringRecord::new();
     let mut row = 0usize;
+    let mut origins = Vec::new();
     loop {
         match rdr.read_record(&mut record) {
             Ok(false) => break,
@@ -88,6 +91,7 @@ pub fn load_column_from_reader<R: Read>(
             )));
         }
         values.push(v);
+        origins.push((line, row));
     }
     if values.is_empty() {
         return Err(Error::input(format!(
@@ -95,7 +99,7 @@ pub fn load_column_from_reader<R: Read>(
             if dropped > 0 { format!(" ({dropped} empty cells dropped)") } else { String::new() }
         )));
     }
-    Ok(Sample { values, dropped })
+    Ok(Sample { values, dropped, origins })
 }
 
 fn truncate(s: &str) -> String {

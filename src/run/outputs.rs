@@ -6,9 +6,10 @@ use serde::Serialize;
 use crate::error::{Error, Result};
 use crate::store::{write_atomic, DrawRow, RunDraws, RunLayout};
 use crate::summary::{
-    cdf_draws, count_modes, distribution, mixture_mean, mixture_quantile, mixture_sd, Bands, CountProbability,
-    DensityDraws, Posterior, MIN_RELATIVE_PROMINENCE,
+    cdf_draws, count_modes, distribution, mixture_mean_on, mixture_quantile_on, mixture_sd_on, Bands,
+    CountProbability, DensityDraws, Posterior, MIN_RELATIVE_PROMINENCE,
 };
+use crate::data::Transform;
 
 /// The content of `bands.json`.
 #[derive(Debug, Clone, Serialize)]
@@ -145,16 +146,18 @@ pub struct SummaryFile {
 pub const QUANTILE_PROBS: [f64; 3] = [0.05, 0.5, 0.95];
 
 /// Computes and writes cdf.csv and summary.json from the draws and their densities on the
-/// grid (`dens`, `bands` as written to bands.csv).
+/// grid (`dens`, `bands` as written to bands.csv); `t` is the scale the draws were fitted
+/// on, and every summary is on the original scale.
 pub fn write_summaries(
     layout: &RunLayout,
     draws: &RunDraws,
     dens: &DensityDraws,
     bands: &Bands,
+    t: Transform,
     converged: Option<bool>,
 ) -> Result<()> {
     let levels = &bands.levels;
-    let cdf = Bands::new_clipped(&cdf_draws(draws, &dens.grid), levels, 0.0, 1.0);
+    let cdf = Bands::new_clipped(&cdf_draws(draws, &dens.grid, t), levels, 0.0, 1.0);
     write_atomic(&layout.cdf_csv(), cdf.to_csv().as_bytes())?;
 
     let n = draws.min_len();
@@ -172,13 +175,13 @@ pub fn write_summaries(
         levels: levels.clone(),
         simultaneous_density: simul_multipliers(bands),
         cdf_file: "cdf.csv",
-        mean: feature(&mixture_mean),
-        sd: feature(&mixture_sd),
+        mean: feature(&|r| mixture_mean_on(r, t)),
+        sd: feature(&|r| mixture_sd_on(r, t)),
         quantiles: QUANTILE_PROBS
             .iter()
             .map(|&p| QuantileSummary {
                 p,
-                posterior: feature(&|r| mixture_quantile(r, p)),
+                posterior: feature(&|r| mixture_quantile_on(r, p, t)),
             })
             .collect(),
         modes: CountSummary {

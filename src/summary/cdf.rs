@@ -5,6 +5,7 @@
 use statrs::function::erf::erfc;
 
 use super::density::DensityDraws;
+use crate::data::Transform;
 use crate::store::{DrawRow, RunDraws};
 
 /// Φ(z), the standard normal CDF.
@@ -21,10 +22,19 @@ pub fn mixture_cdf(row: &DrawRow, x: f64) -> f64 {
     f.clamp(0.0, 1.0)
 }
 
+/// The CDF of the original-scale variable at `x` for a draw fitted on scale `t`
+/// (t is increasing, so F_X(x) = F_Y(t(x))).
+pub fn mixture_cdf_on(row: &DrawRow, x: f64, t: Transform) -> f64 {
+    if !t.in_support(x) {
+        return 0.0;
+    }
+    mixture_cdf(row, t.forward(x))
+}
+
 /// The CDF of every draw of `run` (cut to the shortest chain) on `grid`, in the same
 /// layout as the densities, so the pointwise and simultaneous band code applies as is.
-pub fn cdf_draws(run: &RunDraws, grid: &[f64]) -> DensityDraws {
-    DensityDraws::from_fn(run, grid, mixture_cdf)
+pub fn cdf_draws(run: &RunDraws, grid: &[f64], t: Transform) -> DensityDraws {
+    DensityDraws::from_fn(run, grid, |row, x| mixture_cdf_on(row, x, t))
 }
 
 #[cfg(test)]

@@ -1,5 +1,8 @@
-//! The mixture density of each stored draw on a grid, on the data scale.
+//! The mixture density of each stored draw on a grid, on the data scale. Draws are stored
+//! on the fitted scale; under `[data] transform = "log"` the density of x is the fitted
+//! density at ln x times the Jacobian 1/x (see [`crate::data::Transform`]).
 
+use crate::data::Transform;
 use crate::dist::LN_SQRT_2PI;
 use crate::store::{DrawRow, RunDraws};
 
@@ -11,6 +14,14 @@ pub fn mixture_density(row: &DrawRow, x: f64) -> f64 {
         f += (row.weight[j].ln() - row.sd[j].ln() - LN_SQRT_2PI - 0.5 * z * z).exp();
     }
     f
+}
+
+/// The density of the original-scale variable at `x` for a draw fitted on scale `t`.
+pub fn mixture_density_on(row: &DrawRow, x: f64, t: Transform) -> f64 {
+    if !t.in_support(x) {
+        return 0.0;
+    }
+    mixture_density(row, t.forward(x)) * t.log_jacobian(x).exp()
 }
 
 /// A curve of every draw on a grid (the density, or the CDF built by
@@ -28,6 +39,11 @@ impl DensityDraws {
     /// Evaluates every draw of `run` (cut to the shortest chain) on `grid`.
     pub fn new(run: &RunDraws, grid: &[f64]) -> Self {
         Self::from_fn(run, grid, mixture_density)
+    }
+
+    /// Densities on the original scale of draws fitted on scale `t`.
+    pub fn new_on(run: &RunDraws, grid: &[f64], t: Transform) -> Self {
+        Self::from_fn(run, grid, |row, x| mixture_density_on(row, x, t))
     }
 
     /// Evaluates `curve(draw, x)` for every draw of `run` (cut to the shortest chain).

@@ -2,12 +2,16 @@
 //! standard deviation. Each feature is computed exactly for every draw — the mean as
 //! Σ w_k μ_k, the variance as Σ w_k (σ_k² + μ_k²) − mean², a quantile by solving the
 //! draw's CDF by bisection — and then summarised over draws by its posterior mean, median,
-//! sd and equal-tailed credible intervals.
+//! sd and equal-tailed credible intervals. Under `[data] transform = "log"` the features
+//! are those of x = e^y: quantiles map through exp, and each component is log-normal with
+//! mean e^(μ+σ²/2) and variance (e^(σ²) − 1) e^(2μ+σ²) (log-normal moments; common
+//! practice, no source).
 
 use serde::Serialize;
 
 use super::cdf::mixture_cdf;
 use super::quantile::quantile_sorted;
+use crate::data::Transform;
 use crate::store::DrawRow;
 
 /// An equal-tailed credible interval.
@@ -68,6 +72,43 @@ pub fn mixture_sd(row: &DrawRow) -> f64 {
         .map(|k| row.weight[k] * (row.sd[k] * row.sd[k] + (row.mean[k] - m).powi(2)))
         .sum();
     v.sqrt()
+}
+
+/// Mean of one draw's distribution on the original scale.
+pub fn mixture_mean_on(row: &DrawRow, t: Transform) -> f64 {
+    match t {
+        Transform::None => mixture_mean(row),
+        Transform::Log => (0..row.weight.len())
+            .map(|k| row.weight[k] * lognormal_mean(row, k))
+            .sum(),
+    }
+}
+
+/// Standard deviation of one draw's distribution on the original scale (total variance).
+pub fn mixture_sd_on(row: &DrawRow, t: Transform) -> f64 {
+    match t {
+        Transform::None => mixture_sd(row),
+        Transform::Log => {
+            let m = mixture_mean_on(row, t);
+            let v: f64 = (0..row.weight.len())
+                .map(|k| {
+                    let (mu, s2) = (row.mean[k], row.sd[k] * row.sd[k]);
+                    let var_k = s2.exp_m1() * (2.0 * mu + s2).exp();
+                    row.weight[k] * (var_k + (lognormal_mean(row, k) - m).powi(2))
+                })
+                .sum();
+            v.sqrt()
+        }
+    }
+}
+
+fn lognormal_mean(row: &DrawRow, k: usize) -> f64 {
+    (row.mean[k] + 0.5 * row.sd[k] * row.sd[k]).exp()
+}
+
+/// The p-quantile on the original scale (quantiles commute with increasing maps).
+pub fn mixture_quantile_on(row: &DrawRow, p: f64, t: Transform) -> f64 {
+    t.inverse(mixture_quantile(row, p))
 }
 
 /// The p-quantile (0 < p < 1) of one draw's mixture (fitted scale): the root of F(x) = p,

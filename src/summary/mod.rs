@@ -13,10 +13,15 @@ mod quantile;
 mod simultaneous;
 
 pub use bands::{level_label, Bands};
-pub use cdf::{cdf_draws, mixture_cdf, std_normal_cdf};
-pub use density::{mixture_density, DensityDraws};
-pub use functionals::{mixture_mean, mixture_quantile, mixture_sd, Interval, Posterior};
+pub use cdf::{cdf_draws, mixture_cdf, mixture_cdf_on, std_normal_cdf};
+pub use density::{mixture_density, mixture_density_on, DensityDraws};
+pub use functionals::{
+    mixture_mean, mixture_mean_on, mixture_quantile, mixture_quantile_on, mixture_sd,
+    mixture_sd_on, Interval, Posterior,
+};
 pub use grid::linspace;
 pub use modes::{count_modes, distribution, CountProbability, MIN_RELATIVE_PROMINENCE};
 pub use quantile::quantile_sorted;
-pub use simultaneous::{critical_value, max_standardised_deviation, simultaneous_bands, SimultaneousBand};
+pub use simultaneous::{
+    critical_value, max_standardised_deviation, simultaneous_bands, SimultaneousBand,
+};
