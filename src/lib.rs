@@ -15,9 +15,11 @@
 //! - [`store`]: the run directory (draws, checkpoints, manifest);
 //! - [`summary`]: densities on a grid and pointwise bands;
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
+//! - [`compare`]: PSIS-LOO and WAIC comparison of runs on the same data;
 //! - [`run`]: the whole job; [`cli`]: the thin command line over it.
 
 pub mod cli;
+pub mod compare;
 pub mod config;
 pub mod data;
 pub mod diagnostics;
