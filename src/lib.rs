@@ -16,6 +16,7 @@
 //! - [`summary`]: densities on a grid and pointwise bands;
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
 //! - [`compare`]: PSIS-LOO and WAIC comparison of runs on the same data;
+//! - [`gate`]: the convergence gate on a run's label-invariant quantities;
 //! - [`run`]: the whole job; [`cli`]: the thin command line over it.
 
 pub mod cli;
@@ -25,6 +26,7 @@ pub mod data;
 pub mod diagnostics;
 pub mod dist;
 pub mod error;
+pub mod gate;
 pub mod model;
 pub mod numfmt;
 pub mod run;

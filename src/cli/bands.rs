@@ -5,16 +5,65 @@ use std::path::Path;
 use crate::config::resolve_check_levels;
 use crate::data::Transform;
 use crate::error::{Error, Result};
+use crate::gate::{assess, DiagnosticsReport, GateSpec};
 use crate::run::{write_bands, write_summaries, Prepared};
-use crate::store::{read_run_draws, Manifest, RunLayout};
+use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
 use crate::summary::{linspace, Bands, DensityDraws};
 
-/// Reads the draws of a run and writes bands.csv / bands.json on the configured grid.
-pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<()> {
+/// Reads the draws of a run, assesses them against the convergence gate, and writes
+/// diagnostics.json and bands.csv / bands.json (flagged with the verdict) on the configured
+/// grid. Returns the assessment.
+pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<DiagnosticsReport> {
     let c = &prep.config;
-    write_for_grid(layout, c.grid_from, c.grid_to, c.grid_points, &c.levels, c.transform)
+    let manifest = Manifest::read(&layout.manifest())?;
+    let (draws, dens) = densities(
+        layout,
+        &manifest,
+        c.grid_from,
+        c.grid_to,
+        c.grid_points,
+        c.transform,
+    )?;
+    let report = assess(
+        &draws,
+        &dens,
+        &GateSpec::from_config(c, manifest.status == RunStatus::Complete),
+    );
+    report.write(layout)?;
+    let bands = Bands::new(&dens, &c.levels);
+    write_bands(layout, &bands, Some(report.passed))?;
+    write_summaries(
+        layout,
+        &draws,
+        &dens,
+        &bands,
+        c.transform,
+        Some(report.passed),
+    )?;
+    Ok(report)
 }
 
+fn densities(
+    layout: &RunLayout,
+    manifest: &Manifest,
+    from: f64,
+    to: f64,
+    points: usize,
+    t: Transform,
+) -> Result<(RunDraws, DensityDraws)> {
+    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
+    if draws.min_len() == 0 {
+        return Err(Error::input(format!(
+            "{}: no draws stored yet",
+            layout.root.display()
+        )));
+    }
+    let grid = linspace(from, to, points);
+    let dens = DensityDraws::new_on(&draws, &grid, t);
+    Ok((draws, dens))
+}
+
+/// Bands on another grid; they carry the verdict of the run's diagnostics.json, if any.
 fn write_for_grid(
     layout: &RunLayout,
     from: f64,
@@ -24,15 +73,13 @@ fn write_for_grid(
     t: Transform,
 ) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
-    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
-    if draws.min_len() == 0 {
-        return Err(Error::input(format!("{}: no draws stored yet", layout.root.display())));
-    }
-    let grid = linspace(from, to, points);
-    let dens = DensityDraws::new_on(&draws, &grid, t);
+    let (draws, dens) = densities(layout, &manifest, from, to, points, t)?;
+    let converged = DiagnosticsReport::read(&layout.diagnostics_json())
+        .ok()
+        .map(|r| r.passed);
     let bands = Bands::new(&dens, levels);
-    write_bands(layout, &bands, None)?;
-    write_summaries(layout, &draws, &dens, &bands, t, None)
+    write_bands(layout, &bands, converged)?;
+    write_summaries(layout, &draws, &dens, &bands, t, converged)
 }
 
 pub(super) fn bands(
@@ -50,10 +97,14 @@ pub(super) fn bands(
     let to = to.unwrap_or(c.grid_to);
     let levels = levels.unwrap_or_else(|| c.levels.clone());
     if points < 2 {
-        return Err(Error::input(format!("--points must be at least 2, got {points}")));
+        return Err(Error::input(format!(
+            "--points must be at least 2, got {points}"
+        )));
     }
     if !(from.is_finite() && to.is_finite() && from < to) {
-        return Err(Error::input(format!("--from must be below --to, got {from} and {to}")));
+        return Err(Error::input(format!(
+            "--from must be below --to, got {from} and {to}"
+        )));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
     write_for_grid(&layout, from, to, points, &levels, c.transform)?;

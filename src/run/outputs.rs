@@ -3,13 +3,13 @@
 
 use serde::Serialize;
 
+use crate::data::Transform;
 use crate::error::{Error, Result};
 use crate::store::{write_atomic, DrawRow, RunDraws, RunLayout};
 use crate::summary::{
-    cdf_draws, count_modes, distribution, mixture_mean_on, mixture_quantile_on, mixture_sd_on, Bands,
-    CountProbability, DensityDraws, Posterior, MIN_RELATIVE_PROMINENCE,
+    cdf_draws, count_modes, distribution, mixture_mean_on, mixture_quantile_on, mixture_sd_on,
+    Bands, CountProbability, DensityDraws, Posterior, MIN_RELATIVE_PROMINENCE,
 };
-use crate::data::Transform;
 
 /// The content of `bands.json`.
 #[derive(Debug, Clone, Serialize)]
@@ -83,8 +83,8 @@ pub fn write_bands(layout: &RunLayout, bands: &Bands, converged: Option<bool>) -
             .collect(),
         simultaneous_multipliers: simul_multipliers(bands),
     };
-    let mut json =
-        serde_json::to_vec_pretty(&file).map_err(|e| Error::internal(format!("cannot encode bands: {e}")))?;
+    let mut json = serde_json::to_vec_pretty(&file)
+        .map_err(|e| Error::internal(format!("cannot encode bands: {e}")))?;
     json.push(b'\n');
     write_atomic(&layout.bands_json(), &json)
 }

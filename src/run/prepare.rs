@@ -23,22 +23,35 @@ pub struct Prepared {
 
 /// Lower-case hex SHA-256 of `bytes`.
 pub fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes).iter().map(|b| format!("{b:02x}")).collect()
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
 }
 
 impl Prepared {
     /// From a config file on disk; its data file is read relative to the config's folder.
     pub fn from_config_file(path: &Path) -> Result<Prepared> {
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| Error::input(format!("cannot read config file {}: {e}", path.display())))?;
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            Error::input(format!("cannot read config file {}: {e}", path.display()))
+        })?;
         let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
-        let dir = if dir.as_os_str().is_empty() { std::path::PathBuf::from(".") } else { dir };
+        let dir = if dir.as_os_str().is_empty() {
+            std::path::PathBuf::from(".")
+        } else {
+            dir
+        };
         Self::from_text(&text, &path.display().to_string(), &dir, None)
     }
 
     /// From config text. `data_bytes`, when given, is used instead of reading the data file
     /// (the embedded demo).
-    pub fn from_text(text: &str, origin: &str, dir: &Path, data_bytes: Option<&[u8]>) -> Result<Prepared> {
+    pub fn from_text(
+        text: &str,
+        origin: &str,
+        dir: &Path,
+        data_bytes: Option<&[u8]>,
+    ) -> Result<Prepared> {
         let raw = parse_config_str(text, origin)?;
         // Check everything that does not depend on the data before touching the data.
         let pre = resolve(&raw, text, origin, dir, None)?;
@@ -64,18 +77,30 @@ impl Prepared {
             }
         };
         let data_origin = pre.data_file.display().to_string();
-        let fitted = pre.transform.apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
+        let fitted =
+            pre.transform
+                .apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
         let data = Standardised::new(&fitted, &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
         if pre.transform != Transform::None {
             // Priors are set on the fitted scale, but the grid is on the original scale:
             // take its defaults from the untransformed sample, starting at 0 at the lowest.
-            let on_x = resolve(&raw, text, origin, dir, Some(&DataSummary::of(&sample.values, &data_origin)?))?;
+            let on_x = resolve(
+                &raw,
+                text,
+                origin,
+                dir,
+                Some(&DataSummary::of(&sample.values, &data_origin)?),
+            )?;
             let given = raw.grid.clone().unwrap_or_default();
             config.grid_from = given.from.unwrap_or(on_x.grid_from.max(0.0));
             config.grid_to = given.to.unwrap_or(on_x.grid_to);
         }
+        // RUN/config.toml must find the data from inside the run directory (sample it again,
+        // `bands`, `resume`, `extend`), so it records the absolute path, not the path as
+        // written relative to the original config's folder.
+        config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let s = data.summary;
         let record = DataRecord {

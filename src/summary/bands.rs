@@ -60,7 +60,11 @@ impl Bands {
             let mean = v.iter().sum::<f64>() / n;
             b.mean.push(mean);
             let ss: f64 = v.iter().map(|&y| (y - mean) * (y - mean)).sum();
-            b.sd.push(if v.len() > 1 { (ss / (n - 1.0)).sqrt() } else { 0.0 });
+            b.sd.push(if v.len() > 1 {
+                (ss / (n - 1.0)).sqrt()
+            } else {
+                0.0
+            });
             v.sort_by(f64::total_cmp);
             b.median.push(quantile_sorted(&v, 0.5));
             for (l, &level) in levels.iter().enumerate() {
