@@ -64,27 +64,33 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
     let layout = RunLayout::new(dir);
     let manifest = Manifest::read(&layout.manifest())?;
     let cfg_path = layout.config();
-    let text = std::fs::read_to_string(&cfg_path).map_err(|e| {
-        Error::input(format!(
-            "cannot read {}: {e}; is this a mixband run directory?",
-            cfg_path.display()
-        ))
-    })?;
-    // The data file as recorded in the manifest (absolute, or inside the run directory).
-    let origin = cfg_path.display().to_string();
-    let mut raw = parse_config_str(&text, &origin)?;
-    let recorded = Path::new(&manifest.data.file);
-    let file = if recorded.is_absolute() {
-        recorded.to_path_buf()
-    } else {
-        dir.join(recorded)
-    };
-    if let Some(d) = raw.data.as_mut() {
-        d.file = Some(file.display().to_string());
+    if !cfg_path.exists() {
+        return Err(Error::input(format!(
+            "{}: no config.toml; is this a mixband run directory?",
+            dir.display()
+        )));
     }
-    let text = toml::to_string(&raw)
-        .map_err(|e| Error::internal(format!("cannot re-encode {origin}: {e}")))?;
-    let prep = Prepared::from_text(&text, &origin, dir, None)?;
+    // The data as RUN/config.toml names it (an absolute path, or a copy inside the run
+    // directory); failing that, the absolute path recorded in the manifest.
+    let prep = match Prepared::from_config_file(&cfg_path) {
+        Ok(p) => p,
+        Err(first) => {
+            let recorded = Path::new(&manifest.data.file);
+            if !(recorded.is_absolute() && recorded.exists()) {
+                return Err(first);
+            }
+            let origin = cfg_path.display().to_string();
+            let text = std::fs::read_to_string(&cfg_path).map_err(|e| Error::io(&cfg_path, e))?;
+            let mut raw = parse_config_str(&text, &origin)?;
+            if let Some(d) = raw.data.as_mut() {
+                d.file = Some(manifest.data.file.clone());
+            }
+            let text = toml::to_string(&raw)
+                .map_err(|e| Error::internal(format!("cannot re-encode {origin}: {e}")))?;
+            Prepared::from_text(&text, &origin, dir, None)?
+        }
+    };
+    let file = &prep.config.data_file;
     if prep.record.sha256 != manifest.data.sha256 {
         return Err(Error::input(format!(
             "{}: the data file {} has changed since the run (SHA-256 {} then, {} now)",
