@@ -2,6 +2,7 @@
 //! lives in its own file and does little beyond calling library functions and printing.
 
 mod bands;
+mod compare;
 mod demo;
 mod diagnose;
 mod sample;
@@ -102,6 +103,15 @@ pub enum Command {
         #[arg(long, value_delimiter = ',')]
         levels: Option<Vec<f64>>,
     },
+    /// Compare runs on the same data by PSIS-LOO and WAIC (expected log predictive density).
+    Compare {
+        /// Two or more run directories.
+        #[arg(required = true, num_args = 2..)]
+        runs: Vec<PathBuf>,
+        /// Print JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
     /// Check a run's convergence: R-hat, ESS and MCSE of label-invariant quantities
     /// against the gate; exit 3 when it fails.
     #[command(after_help = EXIT_CODES)]
@@ -146,6 +156,7 @@ pub fn run(cli: Cli) -> Result<i32> {
             to,
             levels,
         } => bands::bands(&run, points, from, to, levels),
+        Command::Compare { runs, json } => compare::compare(&runs, json),
         Command::Diagnose {
             run,
             json,

@@ -60,6 +60,8 @@ pub struct DataSection {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub units: Option<String>,
     pub missing: Option<MissingPolicy>,
+    /// "none" or "log": the scale the mixture is fitted on (see src/data/transform.rs).
+    pub transform: Option<crate::data::Transform>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -50,6 +50,7 @@ pub struct RunConfig {
     pub column: String,
     pub units: Option<String>,
     pub missing: MissingPolicy,
+    pub transform: crate::data::Transform,
     pub kernel: Kernel,
     pub weights: WeightsKind,
     pub components: usize,
@@ -355,6 +356,7 @@ pub fn resolve(
         column,
         units: data.units.clone(),
         missing: data.missing.unwrap_or(MissingPolicy::Error),
+        transform: data.transform.unwrap_or_default(),
         kernel,
         weights,
         components,
@@ -415,6 +417,7 @@ impl RunConfig {
                 column: Some(self.column.clone()),
                 units: self.units.clone(),
                 missing: Some(self.missing),
+                transform: Some(self.transform),
             }),
             model: Some(ModelSection {
                 kernel: Some(self.kernel),

@@ -10,6 +10,7 @@ file = "measurements.csv"     # CSV with a header row; relative to this file's f
 column = "value"              # header name of the numeric column
 # units = "mm"                # used in axis labels
 missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
+transform = "none"            # "none", or "log" for positive data: fit ln x, report the density of x
 
 [model]
 kernel = "location-scale"     # "location": one common sd (bandwidth) for all components

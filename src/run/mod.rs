@@ -6,5 +6,5 @@ mod outputs;
 mod prepare;
 
 pub use execute::{execute, ExecOptions, Mode, RunOutcome};
-pub use outputs::{write_bands, BandsFile};
+pub use outputs::{write_bands, write_summaries, BandsFile, SummaryFile, QUANTILE_PROBS};
 pub use prepare::{sha256_hex, Prepared};
