@@ -1,6 +1,6 @@
 //! One Gibbs sweep: allocations, weights, component parameters, hyperparameters.
 
-use super::allocate::{allocate, ComponentTable};
+use super::allocate::{allocate_with, AllocOptions, ComponentTable};
 use super::components::update_components;
 use super::hyper::{update_concentration, update_var_scale};
 use super::rng::StreamKey;
@@ -16,10 +16,29 @@ pub struct SweepOutcome {
     pub occupied: usize,
 }
 
-/// Advances `state` by one sweep numbered `index` (from 1).
-pub fn sweep(x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, index: u64) -> SweepOutcome {
+/// Advances `state` by one sweep numbered `index` (from 1), allocating on one thread.
+pub fn sweep(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+) -> SweepOutcome {
+    sweep_with(x, prior, state, key, index, AllocOptions::default())
+}
+
+/// [`sweep`] with explicit allocation options (threads for the blocks); the result does
+/// not depend on `alloc.threads` or `alloc.simd`.
+pub fn sweep_with(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    alloc: AllocOptions,
+) -> SweepOutcome {
     let table = ComponentTable::new(state);
-    let alloc = allocate(x, &table, key, index);
+    let alloc = allocate_with(x, &table, key, index, alloc);
     let mut rng = key.sweep_rng(index);
     update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
     update_components(prior, &alloc.stats, state, &mut rng);

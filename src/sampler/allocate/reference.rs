@@ -1,4 +1,6 @@
-//! The allocation step, z_i | rest, for every observation: the N × K hot loop.
+//! The reference allocation step, z_i | rest, for every observation: the straightforward
+//! N × K loop with std's `exp`, kept as the yardstick the fast path ([`super::blocked`]) is
+//! tested against.
 //!
 //! For each observation the unnormalised log posterior of each component is
 //! ln w_k − ½ ln(2πσ_k²) − (x − μ_k)²/(2σ_k²); probabilities follow by log-sum-exp and one
@@ -9,92 +11,13 @@
 
 use rand::Rng;
 
-use super::rng::StreamKey;
-use crate::dist::LN_SQRT_2PI;
-use crate::model::State;
-
-/// Observations per allocation block (and per random stream).
-pub const BLOCK: usize = 1024;
-
-/// Per-component constants of the allocation log-probabilities.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ComponentTable {
-    /// ln w_k − ln σ_k − ln √(2π).
-    pub log_const: Vec<f64>,
-    pub mu: Vec<f64>,
-    /// 1 / (2σ_k²).
-    pub half_prec: Vec<f64>,
-}
-
-impl ComponentTable {
-    pub fn new(state: &State) -> Self {
-        let k = state.k();
-        let mut t = ComponentTable {
-            log_const: Vec::with_capacity(k),
-            mu: state.mu.clone(),
-            half_prec: Vec::with_capacity(k),
-        };
-        for j in 0..k {
-            let v = state.var[j];
-            t.log_const.push(state.log_w[j] - 0.5 * v.ln() - LN_SQRT_2PI);
-            t.half_prec.push(0.5 / v);
-        }
-        t
-    }
-
-    pub fn k(&self) -> usize {
-        self.mu.len()
-    }
-}
-
-/// Per-component counts, sums and sums of squares of the allocated observations.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct SuffStats {
-    pub n: Vec<u64>,
-    pub sum: Vec<f64>,
-    pub sumsq: Vec<f64>,
-}
-
-impl SuffStats {
-    pub fn zeros(k: usize) -> Self {
-        SuffStats {
-            n: vec![0; k],
-            sum: vec![0.0; k],
-            sumsq: vec![0.0; k],
-        }
-    }
-
-    /// Adds `other` component-wise.
-    pub fn add(&mut self, other: &SuffStats) {
-        for j in 0..self.n.len() {
-            self.n[j] += other.n[j];
-            self.sum[j] += other.sum[j];
-            self.sumsq[j] += other.sumsq[j];
-        }
-    }
-
-    /// Number of components holding at least one observation.
-    pub fn occupied(&self) -> usize {
-        self.n.iter().filter(|&&c| c > 0).count()
-    }
-
-    pub fn total(&self) -> u64 {
-        self.n.iter().sum()
-    }
-}
-
-/// Result of one allocation pass.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Allocation {
-    pub stats: SuffStats,
-    /// Σ_i ln Σ_k w_k N(x_i; μ_k, σ_k²) at the state the pass was given.
-    pub loglik: f64,
-}
+use super::types::{Allocation, ComponentTable, SuffStats, BLOCK};
+use crate::sampler::rng::StreamKey;
 
 /// Fills `p` with exp(t_k − max) and returns (max, Σ p): the log-sum-exp pieces for one
 /// observation. Shared by the allocation and the log-likelihood so both agree bit for bit.
 #[inline]
-fn terms(x: f64, t: &ComponentTable, p: &mut [f64]) -> (f64, f64) {
+pub fn terms(x: f64, t: &ComponentTable, p: &mut [f64]) -> (f64, f64) {
     let mut m = f64::NEG_INFINITY;
     for j in 0..t.k() {
         let d = x - t.mu[j];
@@ -111,7 +34,12 @@ fn terms(x: f64, t: &ComponentTable, p: &mut [f64]) -> (f64, f64) {
 }
 
 /// Draws z_i for every observation and returns the sufficient statistics.
-pub fn allocate(x: &[f64], table: &ComponentTable, key: &StreamKey, sweep: u64) -> Allocation {
+pub fn allocate_reference(
+    x: &[f64],
+    table: &ComponentTable,
+    key: &StreamKey,
+    sweep: u64,
+) -> Allocation {
     let k = table.k();
     let mut stats = SuffStats::zeros(k);
     let mut loglik = 0.0;
@@ -147,8 +75,8 @@ pub fn allocate(x: &[f64], table: &ComponentTable, key: &StreamKey, sweep: u64) 
 }
 
 /// Observed-data log-likelihood of the state behind `table`, summed exactly as
-/// [`allocate`] sums it.
-pub fn loglik(x: &[f64], table: &ComponentTable) -> f64 {
+/// [`allocate_reference`] sums it.
+pub fn loglik_reference(x: &[f64], table: &ComponentTable) -> f64 {
     let mut p = vec![0.0; table.k()];
     let mut total = 0.0;
     for chunk in x.chunks(BLOCK) {
