@@ -15,8 +15,10 @@
 //! - [`store`]: the run directory (draws, checkpoints, manifest);
 //! - [`summary`]: densities on a grid and pointwise bands;
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
-//! - [`run`]: the whole job; [`cli`]: the thin command line over it.
+//! - [`run`]: the whole job; [`cli`]: the thin command line over it;
+//! - [`bench`]: synthetic speed and memory workloads (`mixband bench`).
 
+pub mod bench;
 pub mod cli;
 pub mod config;
 pub mod data;

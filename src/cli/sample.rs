@@ -8,11 +8,9 @@ use crate::run::{execute, ExecOptions, Mode, Prepared};
 use crate::store::RunLayout;
 
 pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
-    let threads = opts.threads.unwrap_or_else(|| {
-        std::thread::available_parallelism()
-            .map(|n| n.get())
-            .unwrap_or(1)
-    });
+    let threads = opts
+        .threads
+        .unwrap_or_else(|| std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1));
     ExecOptions {
         threads: threads.max(1),
         quiet: opts.quiet || !std::io::IsTerminal::is_terminal(&std::io::stderr()),
@@ -20,8 +18,12 @@ pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
     }
 }
 
-pub(super) fn sample(config: &Path, out: &Path, force: bool, opts: &SampleOpts) -> Result<i32> {
-    let prep = Prepared::from_config_file(config)?;
+pub(super) fn sample(config: &Path, out: &Path, force: bool, chain_ids: Option<&[i64]>, opts: &SampleOpts) -> Result<i32> {
+    let mut prep = Prepared::from_config_file(config)?;
+    if let Some(ids) = chain_ids {
+        let ids = crate::config::check_chain_ids(ids, prep.config.chains).map_err(|m| Error::input(format!("--chains {m}")))?;
+        prep.config.chain_ids = Some(ids);
+    }
     finish(&prep, out, Mode::Fresh { force }, opts, &[])
 }
 
@@ -39,7 +41,7 @@ pub(super) fn finish(
     let c = &prep.config;
     eprintln!(
         "mixband: {} chains x {} draws (warm-up {}, thin {}) of a {:?} mixture, K = {}, {:?} weights, on {} observations of \"{}\"{}",
-        c.chains,
+        c.chain_id_list().len(),
         c.draws,
         c.warmup,
         c.thin,
@@ -78,10 +80,7 @@ pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) 
     let layout = RunLayout::new(run);
     let cfg_path = layout.config();
     if !cfg_path.exists() {
-        return Err(Error::input(format!(
-            "{}: no config.toml; is this a mixband run directory?",
-            run.display()
-        )));
+        return Err(Error::input(format!("{}: no config.toml; is this a mixband run directory?", run.display())));
     }
     let mut prep = Prepared::from_config_file(&cfg_path)?;
     if let Some(n) = extra_draws {

@@ -38,6 +38,7 @@ warmup = 1000                 # sweeps discarded per chain
 draws = 1000                  # kept draws per chain
 thin = 1                      # keep every thin-th sweep after warm-up
 # seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
+# chain_ids = [1, 2]          # run only these chains, for jobs joined by `mixband merge`
 
 [grid]                        # where the density is evaluated
 # from = 0.0                  # default: data minimum - 10% of the range
@@ -60,9 +61,7 @@ mod tests {
     #[test]
     fn template_parses_and_resolves() {
         let raw = crate::config::parse_config_str(TEMPLATE, "template").unwrap();
-        let cfg =
-            crate::config::resolve(&raw, TEMPLATE, "template", std::path::Path::new("."), None)
-                .unwrap();
+        let cfg = crate::config::resolve(&raw, TEMPLATE, "template", std::path::Path::new("."), None).unwrap();
         assert_eq!(cfg.components, 10);
         assert_eq!(cfg.levels, vec![0.5, 0.9, 0.95]);
     }

@@ -14,7 +14,7 @@ pub mod rng;
 mod sweep;
 mod weights;
 
-pub use allocate::{AllocOptions, ComponentTable, SuffStats};
+pub use allocate::{thread_split, AllocOptions, ComponentTable, SuffStats};
 pub use chain::{run_chain, run_chain_with, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};
 pub use init::initial_state;
 pub use sweep::{sweep, sweep_with, SweepOutcome};

@@ -84,7 +84,8 @@ fn tile_terms<E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratch) {
             let d = xi - mu;
             let v = lc - d * d * hp;
             *r = v;
-            *mi = mi.max(v);
+            // f64::max without its NaN fix-up; the same value, as m is never NaN.
+            *mi = if v > *mi { v } else { *mi };
         }
     }
     s.fill(0.0);

@@ -39,7 +39,9 @@ impl Simd {
             #[cfg(target_arch = "x86_64")]
             Simd::Avx2 => std::is_x86_feature_detected!("avx2"),
             #[cfg(target_arch = "x86_64")]
-            Simd::Avx512 => std::is_x86_feature_detected!("avx512f"),
+            Simd::Avx512 => {
+                std::is_x86_feature_detected!("avx512f") && std::is_x86_feature_detected!("avx2")
+            }
             #[cfg(not(target_arch = "x86_64"))]
             _ => false,
         }
@@ -95,7 +97,7 @@ fn run_with<E: ExpFn>(
     #[cfg(target_arch = "x86_64")]
     {
         if simd == Simd::Avx512 && Simd::Avx512.available() {
-            // SAFETY: the CPU supports AVX-512F (checked just above).
+            // SAFETY: the CPU supports AVX-512F and AVX2 (checked just above).
             return unsafe { x86::block_avx512::<E>(x, t, sc, rng, stats) };
         }
         if simd != Simd::Scalar && Simd::Avx2.available() {
@@ -122,7 +124,7 @@ mod x86 {
         block_pass::<E>(x, t, sc, rng, stats)
     }
 
-    #[target_feature(enable = "avx512f")]
+    #[target_feature(enable = "avx512f,avx2")]
     pub unsafe fn block_avx512<E: ExpFn>(
         x: &[f64],
         t: &ComponentTable,

@@ -22,6 +22,7 @@ pub mod reference;
 mod types;
 
 pub use dispatch::{ExpKind, Simd};
+pub use parallel::thread_split;
 pub use reference::{allocate_reference, loglik_reference};
 pub use types::{Allocation, ComponentTable, SuffStats, BLOCK};
 

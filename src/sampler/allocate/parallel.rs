@@ -87,3 +87,12 @@ pub fn run(
     }
     Allocation { stats, loglik }
 }
+
+/// Splits `threads` between `chains` chains: as many chains at once as there are threads
+/// (chains first), and the threads left over shared out to each running chain's blocks.
+/// Returns (chains run at once, threads per chain).
+pub fn thread_split(threads: usize, chains: usize) -> (usize, usize) {
+    let threads = threads.max(1);
+    let workers = threads.min(chains.max(1));
+    (workers, (threads / workers).max(1))
+}
