@@ -13,17 +13,20 @@ use crate::error::{Error, Result};
 /// Reads and parses a config file. Errors name the file and, from the TOML parser, the
 /// line and column.
 pub fn parse_config_file(path: &Path) -> Result<(RawConfig, String)> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Error::input(format!("cannot read config file {}: {e}", path.display()))
-    })?;
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Error::input(format!("cannot read config file {}: {e}", path.display())))?;
     let raw = parse_config_str(&text, &path.display().to_string())?;
     Ok((raw, text))
 }
 
 /// Parses config text; `origin` names it in messages.
 pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
-    toml::from_str::<RawConfig>(text)
-        .map_err(|e| Error::input(format!("{origin}: invalid config: {}", e.to_string().trim_end())))
+    toml::from_str::<RawConfig>(text).map_err(|e| {
+        Error::input(format!(
+            "{origin}: invalid config: {}",
+            e.to_string().trim_end()
+        ))
+    })
 }
 
 /// Data-independent settings of a run.
@@ -95,7 +98,14 @@ impl Checker<'_> {
         Error::input(format!("{}: [{section}] {key} {what}{line}", self.origin))
     }
 
-    fn int_at_least(&self, section: &str, key: &str, v: Option<i64>, min: i64, default: i64) -> Result<usize> {
+    fn int_at_least(
+        &self,
+        section: &str,
+        key: &str,
+        v: Option<i64>,
+        min: i64,
+        default: i64,
+    ) -> Result<usize> {
         let v = v.unwrap_or(default);
         if v < min {
             return Err(self.fail(section, key, format!("must be at least {min}, got {v}")));
@@ -105,16 +115,20 @@ impl Checker<'_> {
 
     fn positive(&self, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !(x.is_finite() && x > 0.0) => {
-                Err(self.fail("prior", key, format!("must be a positive finite number, got {x}")))
-            }
+            Some(x) if !(x.is_finite() && x > 0.0) => Err(self.fail(
+                "prior",
+                key,
+                format!("must be a positive finite number, got {x}"),
+            )),
             other => Ok(other),
         }
     }
 
     fn finite(&self, section: &str, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !x.is_finite() => Err(self.fail(section, key, format!("must be finite, got {x}"))),
+            Some(x) if !x.is_finite() => {
+                Err(self.fail(section, key, format!("must be finite, got {x}")))
+            }
             other => Ok(other),
         }
     }
@@ -169,10 +183,18 @@ pub fn resolve(
     let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
     let chain_ids = match &s.chain_ids {
         None => None,
-        Some(ids) => Some(check_chain_ids(ids, chains).map_err(|m| ck.fail("sampler", "chain_ids", m))?),
+        Some(ids) => {
+            Some(check_chain_ids(ids, chains).map_err(|m| ck.fail("sampler", "chain_ids", m))?)
+        }
     };
     let seed = match s.seed {
-        Some(v) if v < 0 => return Err(ck.fail("sampler", "seed", format!("must be a non-negative integer, got {v}"))),
+        Some(v) if v < 0 => {
+            return Err(ck.fail(
+                "sampler",
+                "seed",
+                format!("must be a non-negative integer, got {v}"),
+            ))
+        }
         Some(v) => v as u64,
         None => fresh_seed(),
     };
@@ -196,7 +218,11 @@ pub fn resolve(
     let points = ck.int_at_least("grid", "points", g.points, 2, 200)?;
     if let (Some(a), Some(b)) = (from, to) {
         if a >= b {
-            return Err(ck.fail("grid", "from", format!("must be below [grid] to, got from = {a}, to = {b}")));
+            return Err(ck.fail(
+                "grid",
+                "from",
+                format!("must be below [grid] to, got from = {a}, to = {b}"),
+            ));
         }
     }
 
@@ -210,11 +236,19 @@ pub fn resolve(
     let gate = raw.gate.clone().unwrap_or_default();
     let max_rhat = gate.max_rhat.unwrap_or(1.01);
     if !(max_rhat.is_finite() && max_rhat > 1.0) {
-        return Err(ck.fail("gate", "max_rhat", format!("must be a finite number above 1, got {max_rhat}")));
+        return Err(ck.fail(
+            "gate",
+            "max_rhat",
+            format!("must be a finite number above 1, got {max_rhat}"),
+        ));
     }
     let min_ess = gate.min_ess.unwrap_or(400.0);
     if !(min_ess.is_finite() && min_ess > 0.0) {
-        return Err(ck.fail("gate", "min_ess", format!("must be a positive finite number, got {min_ess}")));
+        return Err(ck.fail(
+            "gate",
+            "min_ess",
+            format!("must be a positive finite number, got {min_ess}"),
+        ));
     }
     let min_chains = ck.int_at_least("gate", "min_chains", gate.min_chains, 1, 2)?;
 
@@ -290,7 +324,9 @@ pub fn check_chain_ids(ids: &[i64], chains: usize) -> std::result::Result<Vec<u6
     let mut out: Vec<u64> = Vec::with_capacity(ids.len());
     for &id in ids {
         if id < 1 || id as u64 > chains as u64 {
-            return Err(format!("must lie between 1 and [sampler] chains = {chains}, got {id}"));
+            return Err(format!(
+                "must lie between 1 and [sampler] chains = {chains}, got {id}"
+            ));
         }
         if out.contains(&(id as u64)) {
             return Err(format!("lists {id} twice"));
@@ -304,7 +340,9 @@ pub fn check_chain_ids(ids: &[i64], chains: usize) -> std::result::Result<Vec<u6
 impl RunConfig {
     /// The ids of the chains this run samples.
     pub fn chain_id_list(&self) -> Vec<u64> {
-        self.chain_ids.clone().unwrap_or_else(|| (1..=self.chains as u64).collect())
+        self.chain_ids
+            .clone()
+            .unwrap_or_else(|| (1..=self.chains as u64).collect())
     }
 }
 
@@ -374,7 +412,10 @@ impl RunConfig {
                 draws: Some(self.draws as i64),
                 thin: Some(self.thin as i64),
                 seed: Some(self.seed as i64),
-                chain_ids: self.chain_ids.as_ref().map(|v| v.iter().map(|&i| i as i64).collect()),
+                chain_ids: self
+                    .chain_ids
+                    .as_ref()
+                    .map(|v| v.iter().map(|&i| i as i64).collect()),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

@@ -15,7 +15,9 @@ use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
 use super::prepare::Prepared;
 use crate::error::{Error, Result};
 use crate::sampler::rng::StreamKey;
-use crate::sampler::{initial_state, run_chain_with, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint};
+use crate::sampler::{
+    initial_state, run_chain_with, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
+};
 use crate::store::{
     read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
 };
@@ -155,11 +157,14 @@ pub fn execute(
     } else {
         ProgressDrawTarget::stderr()
     });
-    let style = ProgressStyle::with_template("chain {prefix} {bar:40} {pos}/{len} sweeps {elapsed_precise} eta {eta}")
-        .unwrap_or_else(|_| ProgressStyle::default_bar());
+    let style = ProgressStyle::with_template(
+        "chain {prefix} {bar:40} {pos}/{len} sweeps {elapsed_precise} eta {eta}",
+    )
+    .unwrap_or_else(|_| ProgressStyle::default_bar());
 
     let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
-    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
+    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> =
+        jobs.iter().map(|_| Mutex::new(None)).collect();
     let next = AtomicUsize::new(0);
     // Chains first; threads left over go to each chain's allocation blocks.
     let (workers, per_chain) = thread_split(opts.threads, jobs.len());
@@ -177,8 +182,19 @@ pub fn execute(
                 bar.set_style(style.clone());
                 bar.set_prefix(rec.id.to_string());
                 let t0 = Instant::now();
-                let r = run_one(prep, &layout, rec.id, plan, units, x, bar.clone(), opts.stop, mode, alloc)
-                    .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
+                let r = run_one(
+                    prep,
+                    &layout,
+                    rec.id,
+                    plan,
+                    units,
+                    x,
+                    bar.clone(),
+                    opts.stop,
+                    mode,
+                    alloc,
+                )
+                .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
                 bar.finish_and_clear();
                 if let Ok(mut slot) = results[i].lock() {
                     *slot = Some(r);
@@ -216,13 +232,23 @@ pub fn execute(
             }
         }
     }
-    let done = manifest.chains.iter().all(|c| c.sweeps_done == plan.total_sweeps());
-    manifest.status = if done { RunStatus::Complete } else { RunStatus::Incomplete };
+    let done = manifest
+        .chains
+        .iter()
+        .all(|c| c.sweeps_done == plan.total_sweeps());
+    manifest.status = if done {
+        RunStatus::Complete
+    } else {
+        RunStatus::Incomplete
+    };
     manifest.write(&layout.manifest())?;
     if let Some(e) = first_error {
         return Err(e);
     }
-    Ok(RunOutcome { manifest, interrupted })
+    Ok(RunOutcome {
+        manifest,
+        interrupted,
+    })
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -243,7 +269,8 @@ fn run_one(
     let state_path = layout.chain_state(id);
     let (mut writer, start) = match mode {
         Mode::Fresh { .. } => {
-            let w = ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
+            let w =
+                ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
             let start = Checkpoint {
                 sweeps_done: 0,
                 state: initial_state(x, &prep.prior, &key),

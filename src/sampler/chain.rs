@@ -81,7 +81,16 @@ pub fn run_chain(
     sink: &mut dyn DrawSink,
     stop: &AtomicBool,
 ) -> Result<ChainStop> {
-    run_chain_with(x, prior, key, plan, start, sink, stop, AllocOptions::default())
+    run_chain_with(
+        x,
+        prior,
+        key,
+        plan,
+        start,
+        sink,
+        stop,
+        AllocOptions::default(),
+    )
 }
 
 /// [`run_chain`] with explicit allocation options (threads per chain); the draws do not

@@ -17,13 +17,26 @@ pub struct SweepOutcome {
 }
 
 /// Advances `state` by one sweep numbered `index` (from 1), allocating on one thread.
-pub fn sweep(x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, index: u64) -> SweepOutcome {
+pub fn sweep(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+) -> SweepOutcome {
     sweep_with(x, prior, state, key, index, AllocOptions::default())
 }
 
 /// [`sweep`] with explicit allocation options (threads for the blocks); the result does
 /// not depend on `alloc.threads` or `alloc.simd`.
-pub fn sweep_with(x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, index: u64, alloc: AllocOptions) -> SweepOutcome {
+pub fn sweep_with(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    alloc: AllocOptions,
+) -> SweepOutcome {
     let table = ComponentTable::new(state);
     let alloc = allocate_with(x, &table, key, index, alloc);
     let mut rng = key.sweep_rng(index);
