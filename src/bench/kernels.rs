@@ -6,7 +6,7 @@ use std::time::Instant;
 
 use crate::run::Prepared;
 use crate::sampler::allocate::{
-    allocate_reference, allocate_with, AllocOptions, ComponentTable, ExpKind, Simd,
+    allocate_reference, allocate_with, loglik_with, AllocOptions, ComponentTable, ExpKind, Simd,
 };
 use crate::sampler::initial_state;
 use crate::sampler::rng::StreamKey;
@@ -79,5 +79,14 @@ pub fn run_kernels(prep: &Prepared, budget_s: f64) -> Vec<KernelResult> {
             });
         }
     }
+    // The log-likelihood pass alone (terms, exp, log; no uniforms, no picks), best build.
+    let opts = AllocOptions::fast(1);
+    let secs = time_pass(budget_s, |_| {
+        std::hint::black_box(loglik_with(x, &table, opts));
+    });
+    out.push(KernelResult {
+        kernel: format!("loglik-only/{}/fast-exp", opts.simd.name()),
+        ns_per_pair: secs * 1e9 / pairs,
+    });
     out
 }

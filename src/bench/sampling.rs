@@ -38,6 +38,9 @@ impl DrawSink for DensitySink {
     }
 }
 
+/// One chain's density series (grid-major), filled in by its worker thread.
+type ChainSlot = Mutex<Option<Result<Vec<Vec<f64>>>>>;
+
 /// What one sampler workload measured.
 #[derive(Debug, Clone, Copy)]
 pub struct SamplingResult {
@@ -66,8 +69,7 @@ pub fn run_sampling(prep: &Prepared, threads: usize) -> Result<SamplingResult> {
     let alloc = AllocOptions::fast(per_chain);
     let next = AtomicUsize::new(0);
     let stop = AtomicBool::new(false);
-    let slots: Vec<Mutex<Option<Result<Vec<Vec<f64>>>>>> =
-        (0..chains).map(|_| Mutex::new(None)).collect();
+    let slots: Vec<ChainSlot> = (0..chains).map(|_| Mutex::new(None)).collect();
     let x = &prep.data.z;
     let t0 = Instant::now();
     std::thread::scope(|s| {

@@ -13,8 +13,9 @@
 
 const LOG2_E: f64 = std::f64::consts::LOG2_E;
 /// ln 2 split so that n · LN2_HI is exact for |n| < 2^11 (the fdlibm constants).
-const LN2_HI: f64 = 6.931_471_803_691_238_164_90e-1;
-const LN2_LO: f64 = 1.908_214_929_270_587_700_02e-10;
+/// 6.93147180369123816490e-01 and 1.90821492927058770002e-10.
+const LN2_HI: f64 = f64::from_bits(0x3FE6_2E42_FEE0_0000);
+const LN2_LO: f64 = f64::from_bits(0x3DEA_39EF_3579_3C76);
 /// 1.5 · 2^52: adding it rounds to an integer kept in the low mantissa bits.
 const ROUND_MAGIC: f64 = 6_755_399_441_055_744.0;
 /// ln of the smallest normal double, 2^-1022.

@@ -19,10 +19,11 @@ use crate::sampler::rng::StreamKey;
 #[inline]
 pub fn terms(x: f64, t: &ComponentTable, p: &mut [f64]) -> (f64, f64) {
     let mut m = f64::NEG_INFINITY;
-    for j in 0..t.k() {
-        let d = x - t.mu[j];
-        let v = t.log_const[j] - d * d * t.half_prec[j];
-        p[j] = v;
+    let params = t.mu.iter().zip(&t.log_const).zip(&t.half_prec);
+    for (pj, ((&mu, &lc), &hp)) in p.iter_mut().zip(params) {
+        let d = x - mu;
+        let v = lc - d * d * hp;
+        *pj = v;
         m = m.max(v);
     }
     let mut s = 0.0;
