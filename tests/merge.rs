@@ -35,6 +35,12 @@ fn setup(dir: &Path, seed: u64) -> PathBuf {
     p
 }
 
+/// Exit codes that mean the outputs were written: 0, or 3 when the convergence gate
+/// fails (these runs are far too short to pass it).
+fn written(code: i32) -> bool {
+    code == 0 || code == 3
+}
+
 fn s(p: &Path) -> &str {
     p.to_str().unwrap()
 }
@@ -44,49 +50,40 @@ fn four_chains_equal_two_plus_two_merged() {
     let d = tmp("equal");
     let cfg = setup(&d, 7);
     let (full, a, b, joined) = (d.join("full"), d.join("a"), d.join("b"), d.join("joined"));
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg),
-            "--out",
-            s(&full),
-            "--quiet",
-            "--threads",
-            "2"
-        ]),
-        0
-    );
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg),
+        "--out",
+        s(&full),
+        "--quiet",
+        "--threads",
+        "2"
+    ])));
     // The parts run on other thread counts: results must not depend on them.
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg),
-            "--out",
-            s(&a),
-            "--quiet",
-            "--chains",
-            "1,2",
-            "--threads",
-            "1"
-        ]),
-        0
-    );
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg),
-            "--out",
-            s(&b),
-            "--quiet",
-            "--chains",
-            "4,3",
-            "--threads",
-            "3"
-        ]),
-        0
-    );
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg),
+        "--out",
+        s(&a),
+        "--quiet",
+        "--chains",
+        "1,2",
+        "--threads",
+        "1"
+    ])));
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg),
+        "--out",
+        s(&b),
+        "--quiet",
+        "--chains",
+        "4,3",
+        "--threads",
+        "3"
+    ])));
     assert!(!a.join("draws/chain-3.csv").exists());
-    assert_eq!(cli(&["merge", s(&a), s(&b), "--out", s(&joined)]), 0);
+    assert!(written(cli(&["merge", s(&a), s(&b), "--out", s(&joined)])));
     for i in 1..=4 {
         let f = format!("draws/chain-{i}.csv");
         let want = std::fs::read(full.join(&f)).unwrap();
@@ -111,30 +108,24 @@ fn merge_refuses_overlapping_chains_and_different_configs() {
     let d = tmp("refuse");
     let cfg = setup(&d, 8);
     let (a, b) = (d.join("a"), d.join("b"));
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg),
-            "--out",
-            s(&a),
-            "--quiet",
-            "--chains",
-            "1,2"
-        ]),
-        0
-    );
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg),
-            "--out",
-            s(&b),
-            "--quiet",
-            "--chains",
-            "2,3"
-        ]),
-        0
-    );
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg),
+        "--out",
+        s(&a),
+        "--quiet",
+        "--chains",
+        "1,2"
+    ])));
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg),
+        "--out",
+        s(&b),
+        "--quiet",
+        "--chains",
+        "2,3"
+    ])));
     assert_eq!(cli(&["merge", s(&a), s(&b), "--out", s(&d.join("m1"))]), 2);
     assert!(!d.join("m1/manifest.json").exists());
     // Same chains split correctly but another seed: a different config.
@@ -142,18 +133,15 @@ fn merge_refuses_overlapping_chains_and_different_configs() {
     std::fs::create_dir_all(&other).unwrap();
     let cfg2 = setup(&other, 9);
     let c = d.join("c");
-    assert_eq!(
-        cli(&[
-            "sample",
-            s(&cfg2),
-            "--out",
-            s(&c),
-            "--quiet",
-            "--chains",
-            "3"
-        ]),
-        0
-    );
+    assert!(written(cli(&[
+        "sample",
+        s(&cfg2),
+        "--out",
+        s(&c),
+        "--quiet",
+        "--chains",
+        "3"
+    ])));
     assert_eq!(cli(&["merge", s(&a), s(&c), "--out", s(&d.join("m2"))]), 2);
     // Chain ids outside 1..=chains are bad input.
     assert_eq!(

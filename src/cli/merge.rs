@@ -1,31 +1,33 @@
 //! `mixband merge`: joins runs that sampled disjoint chains of one config, then writes the
-//! joined run's bands from its draws.
+//! joined run's diagnostics and bands from its draws, as `sample` does at the end of a run.
 
 use std::path::{Path, PathBuf};
 
 use crate::error::{Error, Result};
-use crate::run::merge_runs;
+use crate::run::{merge_runs, Prepared};
 use crate::store::RunLayout;
 
 pub(super) fn merge(runs: &[PathBuf], out: &Path) -> Result<i32> {
-    let (manifest, raw) = merge_runs(runs, out)?;
-    let missing = |key: &str| Error::input(format!("{}: config.toml lacks {key}", out.display()));
-    let grid = raw.grid.as_ref().ok_or_else(|| missing("[grid]"))?;
-    let from = grid.from.ok_or_else(|| missing("[grid] from"))?;
-    let to = grid.to.ok_or_else(|| missing("[grid] to"))?;
-    let points = grid.points.ok_or_else(|| missing("[grid] points"))?.max(2) as usize;
-    let levels = raw
-        .bands
-        .as_ref()
-        .and_then(|b| b.levels.clone())
-        .ok_or_else(|| missing("[bands] levels"))?;
+    let (manifest, _) = merge_runs(runs, out)?;
     let layout = RunLayout::new(out);
-    super::bands::write_for_grid(&layout, from, to, points, &levels)?;
+    // The summaries need the data only for the resolved config's data-dependent settings;
+    // its hash must still be the one every part sampled.
+    let prep = Prepared::from_config_file(&layout.config())?;
+    if prep.record.sha256 != manifest.data.sha256 {
+        return Err(Error::input(format!(
+            "{}: the data file {} has changed since the parts were sampled (SHA-256 {} then, {} now)",
+            out.display(),
+            prep.record.file,
+            manifest.data.sha256,
+            prep.record.sha256
+        )));
+    }
+    let report = super::bands::summarise(&layout, &prep)?;
     let ids: Vec<String> = manifest.chains.iter().map(|c| c.id.to_string()).collect();
     println!(
         "mixband: joined chains {} into {}",
         ids.join(", "),
         out.display()
     );
-    Ok(0)
+    Ok(super::diagnose::print_verdict(&report))
 }

@@ -4,6 +4,7 @@
 mod bands;
 mod bench;
 mod demo;
+mod diagnose;
 mod merge;
 mod sample;
 mod template;
@@ -116,6 +117,27 @@ pub enum Command {
         #[arg(long, value_delimiter = ',')]
         levels: Option<Vec<f64>>,
     },
+    /// Check a run's convergence: R-hat, ESS and MCSE of label-invariant quantities
+    /// against the gate; exit 3 when it fails.
+    #[command(after_help = EXIT_CODES)]
+    Diagnose {
+        run: PathBuf,
+        /// Print the report as JSON (the format of RUN/diagnostics.json).
+        #[arg(long)]
+        json: bool,
+        /// Also list per-component parameters (not label-invariant; never gated).
+        #[arg(long)]
+        components: bool,
+        /// Largest R-hat that passes (default: the run's [gate] max_rhat).
+        #[arg(long)]
+        max_rhat: Option<f64>,
+        /// Smallest bulk and tail ESS that pass (default: the run's [gate] min_ess).
+        #[arg(long)]
+        min_ess: Option<f64>,
+        /// Fewest chains that pass (default: the run's [gate] min_chains).
+        #[arg(long)]
+        min_chains: Option<usize>,
+    },
     /// Print a commented starter config listing every key.
     Template,
     /// Time the sampler on synthetic workloads (ns per pair, sweeps/s, memory, ESS/s).
@@ -144,6 +166,23 @@ pub fn run(cli: Cli) -> Result<i32> {
             levels,
         } => bands::bands(&run, points, from, to, levels),
         Command::Bench(a) => bench::bench(&a),
+        Command::Diagnose {
+            run,
+            json,
+            components,
+            max_rhat,
+            min_ess,
+            min_chains,
+        } => diagnose::diagnose(
+            &run,
+            json,
+            components,
+            &crate::gate::ThresholdOverrides {
+                max_rhat,
+                min_ess,
+                min_chains,
+            },
+        ),
         Command::Template => {
             print!("{}", crate::config::TEMPLATE);
             Ok(0)

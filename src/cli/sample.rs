@@ -80,9 +80,9 @@ pub(super) fn finish(
         )));
     }
     let layout = RunLayout::new(out);
-    super::bands::summarise(&layout, prep)?;
+    let report = super::bands::summarise(&layout, prep)?;
     println!("mixband: wrote {}", out.display());
-    Ok(0)
+    Ok(super::diagnose::print_verdict(&report))
 }
 
 pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) -> Result<i32> {

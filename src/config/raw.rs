@@ -91,6 +91,10 @@ pub struct PriorSection {
     pub var_scale_rate: Option<f64>,
     /// δ of the symmetric Dirichlet weight prior.
     pub dirichlet_delta: Option<f64>,
+    /// "fixed" or "gamma": δ fixed at `dirichlet_delta`, or δ ~ Gamma(delta_shape, delta_rate).
+    pub delta_prior: Option<HyperChoice>,
+    pub delta_shape: Option<f64>,
+    pub delta_rate: Option<f64>,
     /// "fixed" or "gamma" for the stick-breaking concentration α.
     pub alpha_prior: Option<HyperChoice>,
     pub alpha: Option<f64>,
@@ -110,6 +114,8 @@ pub struct SamplerSection {
     /// full run; for splitting a run into jobs that `mixband merge` joins.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub chain_ids: Option<Vec<i64>>,
+    /// Label-switching moves for stick-breaking weights (on by default).
+    pub label_moves: Option<bool>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -50,6 +50,7 @@ pub struct RunConfig {
     pub draws: usize,
     pub thin: usize,
     pub seed: u64,
+    pub label_moves: bool,
     pub grid_from: f64,
     pub grid_to: f64,
     pub grid_points: usize,
@@ -71,6 +72,9 @@ pub struct PriorValues {
     pub var_scale_shape: f64,
     pub var_scale_rate: f64,
     pub dirichlet_delta: f64,
+    pub delta_prior: HyperChoice,
+    pub delta_shape: f64,
+    pub delta_rate: f64,
     pub alpha_prior: HyperChoice,
     pub alpha: f64,
     pub alpha_shape: f64,
@@ -178,8 +182,8 @@ pub fn resolve(
 
     let s = raw.sampler.clone().unwrap_or_default();
     let chains = ck.int_at_least("sampler", "chains", s.chains, 1, 4)?;
-    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 1000)?;
-    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 1000)?;
+    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 2000)?;
+    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 5000)?;
     let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
     let chain_ids = match &s.chain_ids {
         None => None,
@@ -208,6 +212,8 @@ pub fn resolve(
     let var_scale_shape = ck.positive("var_scale_shape", p.var_scale_shape)?;
     let var_scale_rate = ck.positive("var_scale_rate", p.var_scale_rate)?;
     let dirichlet_delta = ck.positive("dirichlet_delta", p.dirichlet_delta)?;
+    let delta_shape = ck.positive("delta_shape", p.delta_shape)?;
+    let delta_rate = ck.positive("delta_rate", p.delta_rate)?;
     let alpha = ck.positive("alpha", p.alpha)?;
     let alpha_shape = ck.positive("alpha_shape", p.alpha_shape)?;
     let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
@@ -271,6 +277,10 @@ pub fn resolve(
         var_scale_shape: var_scale_shape.unwrap_or(0.2),
         var_scale_rate: var_scale_rate.unwrap_or(10.0 / (range * range)),
         dirichlet_delta: dirichlet_delta.unwrap_or(1.0),
+        delta_prior: p.delta_prior.unwrap_or(HyperChoice::Fixed),
+        // Malsiner-Walli, Frühwirth-Schnatter & Grün (2016): δ ~ Gamma(10, 10 K), prior mean 1/K.
+        delta_shape: delta_shape.unwrap_or(10.0),
+        delta_rate: delta_rate.unwrap_or(10.0 * components as f64),
         alpha_prior: p.alpha_prior.unwrap_or(HyperChoice::Gamma),
         alpha: alpha.unwrap_or(1.0),
         alpha_shape: alpha_shape.unwrap_or(1.0),
@@ -306,6 +316,7 @@ pub fn resolve(
         draws,
         thin,
         seed,
+        label_moves: s.label_moves.unwrap_or(true),
         grid_from,
         grid_to,
         grid_points: points,
@@ -379,6 +390,7 @@ impl RunConfig {
         let gamma_b = p.var_scale_prior == HyperChoice::Gamma;
         let dir = self.weights == WeightsKind::Dirichlet;
         let gamma_a = p.alpha_prior == HyperChoice::Gamma;
+        let gamma_d = p.delta_prior == HyperChoice::Gamma;
         RawConfig {
             data: Some(DataSection {
                 file: Some(self.data_file_text.clone()),
@@ -400,7 +412,10 @@ impl RunConfig {
                 var_scale: (!gamma_b).then_some(p.var_scale),
                 var_scale_shape: gamma_b.then_some(p.var_scale_shape),
                 var_scale_rate: gamma_b.then_some(p.var_scale_rate),
-                dirichlet_delta: dir.then_some(p.dirichlet_delta),
+                dirichlet_delta: (dir && !gamma_d).then_some(p.dirichlet_delta),
+                delta_prior: dir.then_some(p.delta_prior),
+                delta_shape: (dir && gamma_d).then_some(p.delta_shape),
+                delta_rate: (dir && gamma_d).then_some(p.delta_rate),
                 alpha_prior: (!dir).then_some(p.alpha_prior),
                 alpha: (!dir && !gamma_a).then_some(p.alpha),
                 alpha_shape: (!dir && gamma_a).then_some(p.alpha_shape),
@@ -416,6 +431,7 @@ impl RunConfig {
                     .chain_ids
                     .as_ref()
                     .map(|v| v.iter().map(|&i| i as i64).collect()),
+                label_moves: (!dir).then_some(self.label_moves),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

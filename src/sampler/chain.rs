@@ -11,8 +11,9 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use serde::{Deserialize, Serialize};
 
 use super::allocate::{loglik_with, AllocOptions, ComponentTable};
+use super::label_moves::EXACT;
 use super::rng::StreamKey;
-use super::sweep::sweep_with;
+use super::sweep::sweep_alloc;
 use crate::error::Result;
 use crate::model::{Prior, State};
 
@@ -124,7 +125,7 @@ pub fn run_chain_with(
             return Ok(ChainStop::Interrupted { sweeps_done: t });
         }
         let previous = pending_occupied.take().map(|occ| (occ, state.clone()));
-        let out = sweep_with(x, prior, &mut state, key, t + 1, alloc);
+        let out = sweep_alloc(x, prior, &mut state, key, t + 1, &EXACT, alloc);
         if let Some((occupied, prev_state)) = previous {
             sink.draw(KeptDraw {
                 iteration: t,
