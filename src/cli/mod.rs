@@ -2,9 +2,11 @@
 //! lives in its own file and does little beyond calling library functions and printing.
 
 mod bands;
+mod bench;
 mod compare;
 mod demo;
 mod diagnose;
+mod merge;
 mod sample;
 mod template;
 
@@ -57,8 +59,21 @@ pub enum Command {
         /// Replace an earlier mixband run in --out.
         #[arg(long)]
         force: bool,
+        /// Run only these chains, comma separated (overrides `[sampler] chain_ids`); join
+        /// the parts with `mixband merge`.
+        #[arg(long, value_delimiter = ',')]
+        chains: Option<Vec<i64>>,
         #[command(flatten)]
         opts: SampleOpts,
+    },
+    /// Join runs that sampled different chains of one config into one run directory.
+    Merge {
+        /// Run directories to join (same config and data, disjoint chain ids).
+        #[arg(required = true, num_args = 2..)]
+        runs: Vec<PathBuf>,
+        /// Run directory to create.
+        #[arg(long)]
+        out: PathBuf,
     },
     /// Run the built-in demo (invented wing-length data) end to end.
     #[command(after_help = EXIT_CODES)]
@@ -135,6 +150,8 @@ pub enum Command {
     },
     /// Print a commented starter config listing every key.
     Template,
+    /// Time the sampler on synthetic workloads (ns per pair, sweeps/s, memory, ESS/s).
+    Bench(bench::BenchArgs),
 }
 
 /// Runs the parsed command; returns the process exit code.
@@ -144,8 +161,10 @@ pub fn run(cli: Cli) -> Result<i32> {
             config,
             out,
             force,
+            chains,
             opts,
-        } => sample::sample(&config, &out, force, &opts),
+        } => sample::sample(&config, &out, force, chains.as_deref(), &opts),
+        Command::Merge { runs, out } => merge::merge(&runs, &out),
         Command::Demo { out, force, opts } => demo::demo(&out, force, &opts),
         Command::Resume { run, opts } => sample::resume(&run, None, &opts),
         Command::Extend { run, draws, opts } => sample::resume(&run, Some(draws), &opts),
@@ -157,6 +176,7 @@ pub fn run(cli: Cli) -> Result<i32> {
             levels,
         } => bands::bands(&run, points, from, to, levels),
         Command::Compare { runs, json } => compare::compare(&runs, json),
+        Command::Bench(a) => bench::bench(&a),
         Command::Diagnose {
             run,
             json,
