@@ -164,7 +164,7 @@ fn run(prep: &Prepared) -> Figures {
             la += out.moves.labels_accepted as u64;
             ap += out.moves.adjacent_proposed as u64;
             aa += out.moves.adjacent_accepted as u64;
-            if t > cfg.warmup as u64 && (t - cfg.warmup as u64) % cfg.thin as u64 == 0 {
+            if t > cfg.warmup as u64 && (t - cfg.warmup as u64).is_multiple_of(cfg.thin as u64) {
                 pending = Some(out.occupied as f64);
                 sc[2].push(state.concentration);
                 for (gi, &xv) in grid.iter().enumerate() {

@@ -207,7 +207,7 @@ fn halves(s: &Series) -> impl Iterator<Item = &[f64]> {
 fn stuck_only_at_zero(s: &Series) -> bool {
     halves(s)
         .filter(|h| h.iter().all(|v| *v == h[0]))
-        .all(|h| h.first().map_or(true, |v| *v == 0.0))
+        .all(|h| h.first().is_none_or(|v| *v == 0.0))
 }
 
 /// Share of all draws equal to the most common value.

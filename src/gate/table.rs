@@ -123,7 +123,7 @@ fn extremes(r: &DiagnosticsReport) -> (Located, Located) {
             None => q.name.clone(),
         };
         if let Some(v) = q.rhat {
-            if worst.as_ref().map_or(true, |(w, _)| v > *w) {
+            if worst.as_ref().is_none_or(|(w, _)| v > *w) {
                 worst = Some((v, at(q.worst_at.and_then(|a| a.rhat_x))));
             }
         }
@@ -132,7 +132,7 @@ fn extremes(r: &DiagnosticsReport) -> (Located, Located) {
             (q.ess_tail, q.worst_at.and_then(|a| a.ess_tail_x), "tail"),
         ] {
             if let Some(v) = v {
-                if lowest.as_ref().map_or(true, |(l, _)| v < *l) {
+                if lowest.as_ref().is_none_or(|(l, _)| v < *l) {
                     lowest = Some((v, format!("{}, {which}", at(x))));
                 }
             }

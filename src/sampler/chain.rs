@@ -32,7 +32,7 @@ impl ChainPlan {
 
     /// Whether the state after sweep `t` (from 1) is kept.
     pub fn is_kept(&self, t: u64) -> bool {
-        t > self.warmup && (t - self.warmup) % self.thin == 0
+        t > self.warmup && (t - self.warmup).is_multiple_of(self.thin)
     }
 }
 

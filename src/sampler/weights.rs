@@ -25,14 +25,14 @@ pub fn update_weights<R: Rng + ?Sized>(
         }
         WeightsKind::StickBreaking => {
             let mut tail: u64 = n.iter().sum();
-            for j in 0..k {
-                tail -= n[j];
+            for (j, &nj) in n.iter().enumerate() {
+                tail -= nj;
                 if j + 1 == k {
                     state.log_v[j] = 0.0;
                     state.log_1mv[j] = 0.0;
                 } else {
                     let (lv, l1mv) =
-                        log_beta(1.0 + n[j] as f64, state.concentration + tail as f64, rng);
+                        log_beta(1.0 + nj as f64, state.concentration + tail as f64, rng);
                     state.log_v[j] = lv;
                     state.log_1mv[j] = l1mv;
                 }
