@@ -25,6 +25,8 @@ pub mod dist;
 pub mod error;
 pub mod model;
 pub mod numfmt;
+pub mod plot;
+pub mod report;
 pub mod run;
 pub mod sampler;
 pub mod store;

@@ -3,6 +3,8 @@
 
 mod bands;
 mod demo;
+mod plot;
+mod report;
 mod sample;
 mod template;
 
@@ -40,6 +42,9 @@ pub struct SampleOpts {
     /// No progress bars.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Skip the figures (RUN/plots/) and RUN/report.html.
+    #[arg(long)]
+    pub no_report: bool,
 }
 
 #[derive(Debug, Subcommand)]
@@ -101,6 +106,20 @@ pub enum Command {
         #[arg(long, value_delimiter = ',')]
         levels: Option<Vec<f64>>,
     },
+    /// Draw the figures of a run into RUN/plots/ (SVG).
+    Plot {
+        run: PathBuf,
+        /// Add a Gaussian kernel estimate at Silverman's bandwidth for comparison.
+        #[arg(long)]
+        with_kde: bool,
+    },
+    /// Write RUN/report.html: one self-contained page with the figures and diagnostics.
+    Report {
+        run: PathBuf,
+        /// Add a Gaussian kernel estimate at Silverman's bandwidth to the density figure.
+        #[arg(long)]
+        with_kde: bool,
+    },
     /// Print a commented starter config listing every key.
     Template,
 }
@@ -124,6 +143,8 @@ pub fn run(cli: Cli) -> Result<i32> {
             to,
             levels,
         } => bands::bands(&run, points, from, to, levels),
+        Command::Plot { run, with_kde } => plot::plot(&run, with_kde),
+        Command::Report { run, with_kde } => report::report(&run, with_kde),
         Command::Template => {
             print!("{}", crate::config::TEMPLATE);
             Ok(0)

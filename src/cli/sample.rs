@@ -68,6 +68,10 @@ pub(super) fn finish(
     }
     let layout = RunLayout::new(out);
     super::bands::summarise(&layout, prep)?;
+    if !opts.no_report {
+        let report = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
+        println!("mixband: report in {}", report.display());
+    }
     println!("mixband: wrote {}", out.display());
     Ok(0)
 }

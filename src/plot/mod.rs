@@ -1,0 +1,89 @@
+//! Figures of a run, as SVG files in RUN/plots/: the density with its credible bands
+//! (density.svg), chain traces (trace.svg), rank plots (ranks.svg) and the convergence of
+//! the density along the grid (grid-diagnostics.svg). Drawn with plotters' SVG backend;
+//! the visual style lives in [`style`].
+
+pub mod canvas;
+pub mod density;
+pub mod grid_diag;
+pub mod hist;
+pub mod inputs;
+pub mod kde;
+pub mod quantities;
+pub mod ranks;
+pub mod style;
+pub mod trace;
+
+use std::path::{Path, PathBuf};
+
+pub use density::{density_svg, DensityOptions};
+pub use grid_diag::{grid_diagnostics_svg, GridDiagnostics};
+pub use inputs::{RunInputs, StoredBands};
+pub use ranks::ranks_svg;
+pub use trace::trace_svg;
+
+use crate::error::{Error, Result};
+use crate::store::write_atomic;
+
+/// Every figure of a run, as SVG text.
+#[derive(Debug, Clone)]
+pub struct Figures {
+    pub density: String,
+    pub trace: String,
+    pub ranks: String,
+    /// Absent when the run has no diagnostics of the density along the grid.
+    pub grid: Option<String>,
+}
+
+/// Renders every figure.
+pub fn render(inp: &RunInputs, opts: DensityOptions, grid: Option<&GridDiagnostics>) -> Result<Figures> {
+    Ok(Figures {
+        density: density_svg(inp, opts)?,
+        trace: trace_svg(inp)?,
+        ranks: ranks_svg(inp)?,
+        grid: grid.map(|g| grid_diagnostics_svg(inp, g)).transpose()?,
+    })
+}
+
+/// Writes the figures into RUN/plots/ and returns the paths written.
+pub fn write_figures(run: &Path, figs: &Figures) -> Result<Vec<PathBuf>> {
+    let dir = run.join("plots");
+    std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
+    let mut files = vec![
+        ("density.svg", &figs.density),
+        ("trace.svg", &figs.trace),
+        ("ranks.svg", &figs.ranks),
+    ];
+    if let Some(g) = &figs.grid {
+        files.push(("grid-diagnostics.svg", g));
+    }
+    let mut out = Vec::new();
+    for (name, text) in files {
+        let p = dir.join(name);
+        write_atomic(&p, text.as_bytes())?;
+        out.push(p);
+    }
+    // A stale grid figure from an earlier call must not outlive its diagnostics.
+    if figs.grid.is_none() {
+        let stale = dir.join("grid-diagnostics.svg");
+        if stale.exists() {
+            std::fs::remove_file(&stale).map_err(|e| Error::io(&stale, e))?;
+        }
+    }
+    Ok(out)
+}
+
+/// Diagnostics of the density along the grid of a run, when they can be computed.
+/// Filled by the diagnostics module once it is available; `None` until then.
+pub fn grid_diagnostics(_inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
+    Ok(None)
+}
+
+/// Reads a run, renders every figure and writes them into RUN/plots/.
+pub fn plot_run(run: &Path, opts: DensityOptions) -> Result<(RunInputs, Figures, Vec<PathBuf>)> {
+    let inp = RunInputs::read(run)?;
+    let grid = grid_diagnostics(&inp)?;
+    let figs = render(&inp, opts, grid.as_ref())?;
+    let paths = write_figures(run, &figs)?;
+    Ok((inp, figs, paths))
+}
