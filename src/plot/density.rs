@@ -252,7 +252,7 @@ pub(super) fn draw_legend(root: &Area<'_>, items: &[(String, LegendMark)], y: i3
         ))
         .map_err(plot_err)?;
         // Width estimate: about 0.55 em per character at the note size.
-        x += 28 + (label.chars().count() as f64 * style::NOTE_SIZE as f64 / 1.24 * 0.56) as i32 + 22;
+        x += 28 + (label.chars().count() as f64 * style::NOTE_SIZE as f64 / 1.24 * 0.54) as i32 + 18;
     }
     Ok(())
 }

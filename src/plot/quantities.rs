@@ -79,6 +79,26 @@ pub fn average_ranks(values: &[f64]) -> Vec<f64> {
     ranks
 }
 
+/// Ranks 1..=n of `values` with ties broken in a fixed pseudo-random order (a hash of the
+/// position), so tied values share their block of ranks evenly and the result is the same
+/// on every call.
+pub fn tie_broken_ranks(values: &[f64]) -> Vec<f64> {
+    let key = |i: usize| -> u64 {
+        // SplitMix64 finaliser (Steele, Lea & Flood 2014) of the position.
+        let mut z = (i as u64).wrapping_add(0x9E37_79B9_7F4A_7C15);
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        z ^ (z >> 31)
+    };
+    let mut idx: Vec<usize> = (0..values.len()).collect();
+    idx.sort_by(|&a, &b| values[a].total_cmp(&values[b]).then(key(a).cmp(&key(b))));
+    let mut ranks = vec![0.0; values.len()];
+    for (r, &i) in idx.iter().enumerate() {
+        ranks[i] = (r + 1) as f64;
+    }
+    ranks
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -87,5 +107,17 @@ mod tests {
     fn average_ranks_match_scipy_docs_example() {
         // scipy.stats.rankdata([0, 2, 3, 2]) = [1, 2.5, 4, 2.5] (scipy documentation example).
         assert_eq!(average_ranks(&[0.0, 2.0, 3.0, 2.0]), vec![1.0, 2.5, 4.0, 2.5]);
+    }
+
+    #[test]
+    fn tie_broken_ranks_are_a_permutation_that_respects_order() {
+        let v = [3.0, 1.0, 1.0, 2.0, 1.0];
+        let r = tie_broken_ranks(&v);
+        let mut s = r.clone();
+        s.sort_by(f64::total_cmp);
+        assert_eq!(s, vec![1.0, 2.0, 3.0, 4.0, 5.0]);
+        assert_eq!(r[0], 5.0);
+        assert_eq!(r[3], 4.0);
+        assert_eq!(r, tie_broken_ranks(&v));
     }
 }

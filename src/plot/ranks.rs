@@ -2,15 +2,16 @@
 //! 4.3): the draws of all chains are ranked together and each chain's ranks are shown as
 //! a histogram. When the chains mix, every histogram is close to uniform; the shaded
 //! strip is where 99% of bin counts fall under uniformity (normal approximation to the
-//! binomial count, common practice, no source). Tied values (the occupied count) get
-//! their average rank, so a discrete quantity shows comb-like bars even when it mixes.
+//! binomial count, common practice, no source). Ties (the occupied count is discrete) are
+//! broken in a fixed pseudo-random order, so a discrete quantity that mixes also gives
+//! uniform bars, and the figure is the same on every call (common practice, no source).
 
 use plotters::prelude::*;
 
 use super::canvas::{bold, font, plot_err, svg_document, Area};
 use super::density::{draw_heading, top_left};
 use super::inputs::RunInputs;
-use super::quantities::{average_ranks, scalar_quantities, Quantity};
+use super::quantities::{scalar_quantities, tie_broken_ranks, Quantity};
 use super::style;
 use crate::error::Result;
 
@@ -19,7 +20,7 @@ use crate::error::Result;
 pub fn rank_counts(chains: &[Vec<f64>], bins: usize) -> Vec<Vec<usize>> {
     let len = chains.iter().map(Vec::len).min().unwrap_or(0);
     let pooled: Vec<f64> = chains.iter().flat_map(|c| c[..len].iter().copied()).collect();
-    let ranks = average_ranks(&pooled);
+    let ranks = tie_broken_ranks(&pooled);
     let total = pooled.len() as f64;
     chains
         .iter()
@@ -59,7 +60,8 @@ pub fn ranks_svg(inp: &RunInputs) -> Result<String> {
             font(style::NOTE_SIZE - 1, style::INK_SOFT).pos(top_left()),
         ))
         .map_err(plot_err)?;
-        let body = root.margin(head as i32, 14, 24, label_w as i32);
+        // plotters' margin order is (top, bottom, left, right).
+        let body = root.margin(head as i32, 24, label_w as i32, 14);
         let rows = body.split_evenly((qs.len(), 1));
         for (q, row) in qs.iter().zip(rows.iter()) {
             let y = row.get_base_pixel().1 + ch as i32 / 2;
@@ -78,12 +80,16 @@ pub fn ranks_svg(inp: &RunInputs) -> Result<String> {
     })
 }
 
+fn ch_half(row: &Area<'_>) -> i32 {
+    row.dim_in_pixel().1 as i32 / 2 - 8
+}
+
 fn draw_row(row: &Area<'_>, q: &Quantity, inp: &RunInputs) -> Result<()> {
     let cells = row.split_evenly((1, q.chains.len()));
     if q.is_constant() {
         row.draw(&Text::new(
             "constant in every draw: no ranks to compare".to_string(),
-            (10, 50),
+            (10, ch_half(row)),
             font(style::NOTE_SIZE, style::INK_SOFT).pos(top_left()),
         ))
         .map_err(plot_err)?;
@@ -145,6 +151,20 @@ fn draw_row(row: &Area<'_>, q: &Quantity, inp: &RunInputs) -> Result<()> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn ties_are_spread_evenly_over_their_ranks() {
+        // Two chains with the same two values half the time each: every bin of rank counts
+        // must hold about the same number of draws in each chain.
+        let a: Vec<f64> = (0..400).map(|i| (i % 2) as f64).collect();
+        let b = a.clone();
+        let c = rank_counts(&[a, b], 4);
+        for chain in &c {
+            for &n in chain {
+                assert!((70..=130).contains(&n), "{c:?}");
+            }
+        }
+    }
 
     #[test]
     fn counts_cover_every_draw_once_and_separate_shifted_chains() {

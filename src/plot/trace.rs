@@ -28,8 +28,9 @@ pub fn trace_svg(inp: &RunInputs) -> Result<String> {
         draw_legend(root, &legend, 66)?;
         let body = root.margin(head as i32 - 4, 8, 14, 24);
         let panels = body.split_evenly((qs.len(), 1));
-        for (q, panel) in qs.iter().zip(panels.iter()) {
-            draw_panel(panel, q)?;
+        let last = qs.len().saturating_sub(1);
+        for (i, (q, panel)) in qs.iter().zip(panels.iter()).enumerate() {
+            draw_panel(panel, q, i == last)?;
         }
         Ok(())
     })
@@ -48,31 +49,35 @@ pub(super) fn thin_indices(len: usize, max: usize) -> Vec<usize> {
     v
 }
 
-fn draw_panel(area: &Area<'_>, q: &Quantity) -> Result<()> {
+fn draw_panel(area: &Area<'_>, q: &Quantity, bottom: bool) -> Result<()> {
     let len = q.chains.iter().map(Vec::len).max().unwrap_or(0).max(2);
     let lo = q.chains.iter().flatten().copied().fold(f64::INFINITY, f64::min);
     let hi = q.chains.iter().flatten().copied().fold(f64::NEG_INFINITY, f64::max);
     let (y0, y1) = padded_range(lo, hi, 0.06);
     let x1 = len as f64;
     let mut chart = ChartBuilder::on(area)
-        .x_label_area_size(34)
+        .x_label_area_size(if bottom { 50 } else { 30 })
         .y_label_area_size(78)
-        .margin_top(6)
+        .margin_top(26)
+        .margin_right(22)
         .build_cartesian_2d(1.0..x1, y0..y1)
         .map_err(plot_err)?;
-    chart
-        .configure_mesh()
-        .disable_x_mesh()
+    let fy = tick_formatter(y1 - y0, 4);
+    let mut mesh = chart.configure_mesh();
+    mesh.disable_x_mesh()
         .bold_line_style(style::GUIDE)
         .light_line_style(TRANSPARENT)
         .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
         .x_labels(8)
         .y_labels(4)
         .x_label_formatter(&|v| format!("{}", v.round() as i64))
-        .y_label_formatter(&tick_formatter(y1 - y0, 4))
+        .y_label_formatter(&fy)
         .label_style(font(style::TICK_SIZE - 1, style::INK_SOFT))
-        .draw()
-        .map_err(plot_err)?;
+        .axis_desc_style(font(style::LABEL_SIZE, style::INK));
+    if bottom {
+        mesh.x_desc("kept draw");
+    }
+    mesh.draw().map_err(plot_err)?;
     for (i, c) in q.chains.iter().enumerate() {
         let idx = thin_indices(c.len(), style::TRACE_MAX_POINTS);
         chart
@@ -82,12 +87,11 @@ fn draw_panel(area: &Area<'_>, q: &Quantity) -> Result<()> {
             ))
             .map_err(plot_err)?;
     }
-    let (px, py) = chart.plotting_area().get_pixel_range();
+    let (_, py) = chart.plotting_area().get_pixel_range();
     let note = if q.is_constant() { format!("{} (constant)", q.label) } else { q.label.to_string() };
-    let _ = px;
     area.draw(&Text::new(
         note,
-        (86, py.start - area.get_base_pixel().1 + 2),
+        (92, py.start - area.get_base_pixel().1 - 22),
         bold(style::NOTE_SIZE, style::INK).pos(super::density::top_left()),
     ))
     .map_err(plot_err)?;
