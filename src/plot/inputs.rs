@@ -88,7 +88,7 @@ impl RunInputs {
     pub fn read(run: &Path) -> Result<RunInputs> {
         let layout = RunLayout::new(run);
         let manifest = Manifest::read(&layout.manifest())?;
-        let prep = Prepared::from_config_file(&layout.config())?;
+        let prep = Self::prepare(&layout, &manifest)?;
         if prep.record.sha256 != manifest.data.sha256 {
             return Err(Error::input(format!(
                 "{}: the data file {} has changed since the run (SHA-256 {} now, {} recorded); plots would not match the draws",
@@ -116,6 +116,25 @@ impl RunInputs {
             bands,
             observations,
         })
+    }
+
+    /// The resolved config with its data. A data path in RUN/config.toml that is relative
+    /// to the original config's folder does not resolve from RUN; then the absolute path
+    /// recorded in the manifest is read instead (the hash check below still applies).
+    fn prepare(layout: &RunLayout, manifest: &Manifest) -> Result<Prepared> {
+        let cfg = layout.config();
+        match Prepared::from_config_file(&cfg) {
+            Ok(p) => Ok(p),
+            Err(first) => {
+                let recorded = Path::new(&manifest.data.file);
+                if !recorded.is_absolute() || !recorded.exists() {
+                    return Err(first);
+                }
+                let bytes = std::fs::read(recorded).map_err(|e| Error::io(recorded, e))?;
+                let text = std::fs::read_to_string(&cfg).map_err(|e| Error::io(&cfg, e))?;
+                Prepared::from_text(&text, &cfg.display().to_string(), &layout.root, Some(&bytes))
+            }
+        }
     }
 
     /// The axis label of the measurement: the column name, with the configured units.

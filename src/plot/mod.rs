@@ -73,10 +73,32 @@ pub fn write_figures(run: &Path, figs: &Figures) -> Result<Vec<PathBuf>> {
     Ok(out)
 }
 
-/// Diagnostics of the density along the grid of a run, when they can be computed.
-/// Filled by the diagnostics module once it is available; `None` until then.
-pub fn grid_diagnostics(_inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
-    Ok(None)
+/// R-hat and bulk-ESS of the density at each point of the bands' grid, from the stored
+/// draws (chains cut to the shortest), with the gate thresholds of the run's config.
+/// `None` when the draws are too few for the diagnostics.
+pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
+    let dens = crate::summary::DensityDraws::new(&inp.draws, &inp.bands.grid);
+    let mut rhat = Vec::with_capacity(dens.grid.len());
+    let mut ess_bulk = Vec::with_capacity(dens.grid.len());
+    for g in 0..dens.grid.len() {
+        let series: Vec<Vec<f64>> = (0..dens.chains).map(|c| dens.series(c, g)).collect();
+        let refs: Vec<&[f64]> = series.iter().map(Vec::as_slice).collect();
+        match crate::diagnostics::scalar_diagnostics(&refs) {
+            Ok(d) => {
+                rhat.push(d.rhat);
+                ess_bulk.push(d.ess_bulk);
+            }
+            Err(_) => return Ok(None),
+        }
+    }
+    let c = &inp.prep.config;
+    Ok(Some(GridDiagnostics {
+        x: dens.grid.clone(),
+        rhat,
+        ess_bulk,
+        max_rhat: c.max_rhat,
+        min_ess: c.min_ess,
+    }))
 }
 
 /// Reads a run, renders every figure and writes them into RUN/plots/.
