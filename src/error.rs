@@ -12,7 +12,10 @@ pub enum Error {
     /// The user's config, data or arguments are wrong; the message names the culprit.
     Input(String),
     /// Reading or writing a file failed.
-    Io { path: PathBuf, source: std::io::Error },
+    Io {
+        path: PathBuf,
+        source: std::io::Error,
+    },
     /// The run was interrupted (SIGINT); partial results are on disk.
     Interrupted(String),
     /// A bug or an impossible state inside mixband.

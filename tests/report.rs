@@ -42,7 +42,8 @@ fn parse(html: &str) -> Result<roxmltree::Document<'_>, roxmltree::Error> {
 }
 
 fn report(run: &std::path::Path) -> String {
-    let code = mixband::cli::main_with_args(["mixband", "report", run.to_str().unwrap()].map(Into::into));
+    let code =
+        mixband::cli::main_with_args(["mixband", "report", run.to_str().unwrap()].map(Into::into));
     assert_eq!(code, 0);
     std::fs::read_to_string(run.join("report.html")).unwrap()
 }
@@ -51,7 +52,10 @@ fn report(run: &std::path::Path) -> String {
 fn report_is_self_contained_well_formed_and_carries_the_bands() {
     let dir = scratch("report");
     let run = make_run(&dir, 120, &[]);
-    assert!(run.join("report.html").exists(), "sample did not write the report");
+    assert!(
+        run.join("report.html").exists(),
+        "sample did not write the report"
+    );
     let html = report(&run);
     let doc = parse(&html).unwrap_or_else(|e| panic!("report.html is not well-formed: {e}"));
 
@@ -59,23 +63,38 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
     for n in doc.descendants() {
         for a in ["src", "href"] {
             if let Some(v) = n.attribute(a) {
-                assert!(v.starts_with("data:") || v.starts_with('#'), "external reference {a}=\"{v}\"");
+                assert!(
+                    v.starts_with("data:") || v.starts_with('#'),
+                    "external reference {a}=\"{v}\""
+                );
             }
         }
-        assert!(!n.has_tag_name("script"), "the report must not need scripts");
+        assert!(
+            !n.has_tag_name("script"),
+            "the report must not need scripts"
+        );
     }
-    assert!(!html.contains("@import") && !html.contains("url("), "CSS must not load anything");
+    assert!(
+        !html.contains("@import") && !html.contains("url("),
+        "CSS must not load anything"
+    );
 
     // The density, trace, rank and grid figures are inline.
     let svgs = doc.descendants().filter(|n| n.has_tag_name("svg")).count();
     assert_eq!(svgs, 4);
 
     // The download is RUN/bands.csv byte for byte.
-    let link = doc.descendants().find(|n| n.attribute("id") == Some("bands-download")).unwrap();
+    let link = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("bands-download"))
+        .unwrap();
     assert_eq!(link.attribute("download"), Some("bands.csv"));
     let href = link.attribute("href").unwrap();
     let b64 = href.strip_prefix("data:text/csv;base64,").unwrap();
-    assert_eq!(b64_decode(b64), std::fs::read(run.join("bands.csv")).unwrap());
+    assert_eq!(
+        b64_decode(b64),
+        std::fs::read(run.join("bands.csv")).unwrap()
+    );
 
     // Metadata: version, data hash, n, seed.
     let manifest: serde_json::Value =
@@ -84,8 +103,14 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
     assert!(html.contains(&format!("mixband {}", env!("CARGO_PKG_VERSION"))));
     assert!(html.contains("n = 120"));
     assert!(html.contains("seed</dt><dd>5</dd>"));
-    let caution = doc.descendants().find(|n| n.attribute("id") == Some("caution")).unwrap();
-    assert!(caution.text().unwrap().contains("not a substitute for checking the model against the data"));
+    let caution = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("caution"))
+        .unwrap();
+    assert!(caution
+        .text()
+        .unwrap()
+        .contains("not a substitute for checking the model against the data"));
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -93,10 +118,16 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
 fn banner_follows_the_gate() {
     let dir = scratch("report-banner");
     let run = make_run(&dir, 90, &["--no-report"]);
-    assert!(!run.join("report.html").exists(), "--no-report still wrote a report");
+    assert!(
+        !run.join("report.html").exists(),
+        "--no-report still wrote a report"
+    );
     let verdict = |html: &str| -> String {
         let doc = parse(html).unwrap();
-        let b = doc.descendants().find(|n| n.attribute("id") == Some("verdict")).unwrap();
+        let b = doc
+            .descendants()
+            .find(|n| n.attribute("id") == Some("verdict"))
+            .unwrap();
         b.descendants().filter_map(|n| n.text()).collect::<String>()
     };
     let diag = run.join("diagnostics.json");
@@ -113,8 +144,16 @@ fn banner_follows_the_gate() {
     .unwrap();
     let html = report(&run);
     let v = verdict(&html);
-    assert!(v.contains("NOT CONVERGED") && v.contains("loglik: R-hat 1.2 above 1.01") && v.contains("What to try"), "{v}");
-    assert!(html.contains("<td class=\"bad\">1.200</td>"), "failing R-hat not marked");
+    assert!(
+        v.contains("NOT CONVERGED")
+            && v.contains("loglik: R-hat 1.2 above 1.01")
+            && v.contains("What to try"),
+        "{v}"
+    );
+    assert!(
+        html.contains("<td class=\"bad\">1.200</td>"),
+        "failing R-hat not marked"
+    );
     std::fs::write(
         &diag,
         r#"{"passed": true, "thresholds": {"max_rhat": 1.01, "min_ess": 400},
@@ -122,6 +161,9 @@ fn banner_follows_the_gate() {
     )
     .unwrap();
     let v = verdict(&report(&run));
-    assert!(v.contains("CONVERGED") && !v.contains("NOT CONVERGED"), "{v}");
+    assert!(
+        v.contains("CONVERGED") && !v.contains("NOT CONVERGED"),
+        "{v}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }

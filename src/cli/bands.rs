@@ -14,11 +14,20 @@ pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<()> {
     write_for_grid(layout, c.grid_from, c.grid_to, c.grid_points, &c.levels)
 }
 
-fn write_for_grid(layout: &RunLayout, from: f64, to: f64, points: usize, levels: &[f64]) -> Result<()> {
+fn write_for_grid(
+    layout: &RunLayout,
+    from: f64,
+    to: f64,
+    points: usize,
+    levels: &[f64],
+) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
     if draws.min_len() == 0 {
-        return Err(Error::input(format!("{}: no draws stored yet", layout.root.display())));
+        return Err(Error::input(format!(
+            "{}: no draws stored yet",
+            layout.root.display()
+        )));
     }
     let grid = linspace(from, to, points);
     let dens = DensityDraws::new(&draws, &grid);
@@ -41,13 +50,21 @@ pub(super) fn bands(
     let to = to.unwrap_or(c.grid_to);
     let levels = levels.unwrap_or_else(|| c.levels.clone());
     if points < 2 {
-        return Err(Error::input(format!("--points must be at least 2, got {points}")));
+        return Err(Error::input(format!(
+            "--points must be at least 2, got {points}"
+        )));
     }
     if !(from.is_finite() && to.is_finite() && from < to) {
-        return Err(Error::input(format!("--from must be below --to, got {from} and {to}")));
+        return Err(Error::input(format!(
+            "--from must be below --to, got {from} and {to}"
+        )));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
     write_for_grid(&layout, from, to, points, &levels)?;
-    println!("mixband: wrote {} and {}", layout.bands_csv().display(), layout.bands_json().display());
+    println!(
+        "mixband: wrote {} and {}",
+        layout.bands_csv().display(),
+        layout.bands_json().display()
+    );
     Ok(0)
 }

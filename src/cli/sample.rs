@@ -8,9 +8,11 @@ use crate::run::{execute, ExecOptions, Mode, Prepared};
 use crate::store::RunLayout;
 
 pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
-    let threads = opts
-        .threads
-        .unwrap_or_else(|| std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1));
+    let threads = opts.threads.unwrap_or_else(|| {
+        std::thread::available_parallelism()
+            .map(|n| n.get())
+            .unwrap_or(1)
+    });
     ExecOptions {
         threads: threads.max(1),
         quiet: opts.quiet || !std::io::IsTerminal::is_terminal(&std::io::stderr()),
@@ -80,7 +82,10 @@ pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) 
     let layout = RunLayout::new(run);
     let cfg_path = layout.config();
     if !cfg_path.exists() {
-        return Err(Error::input(format!("{}: no config.toml; is this a mixband run directory?", run.display())));
+        return Err(Error::input(format!(
+            "{}: no config.toml; is this a mixband run directory?",
+            run.display()
+        )));
     }
     let mut prep = Prepared::from_config_file(&cfg_path)?;
     if let Some(n) = extra_draws {

@@ -13,17 +13,20 @@ use crate::error::{Error, Result};
 /// Reads and parses a config file. Errors name the file and, from the TOML parser, the
 /// line and column.
 pub fn parse_config_file(path: &Path) -> Result<(RawConfig, String)> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Error::input(format!("cannot read config file {}: {e}", path.display()))
-    })?;
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Error::input(format!("cannot read config file {}: {e}", path.display())))?;
     let raw = parse_config_str(&text, &path.display().to_string())?;
     Ok((raw, text))
 }
 
 /// Parses config text; `origin` names it in messages.
 pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
-    toml::from_str::<RawConfig>(text)
-        .map_err(|e| Error::input(format!("{origin}: invalid config: {}", e.to_string().trim_end())))
+    toml::from_str::<RawConfig>(text).map_err(|e| {
+        Error::input(format!(
+            "{origin}: invalid config: {}",
+            e.to_string().trim_end()
+        ))
+    })
 }
 
 /// Data-independent settings of a run.
@@ -93,7 +96,14 @@ impl Checker<'_> {
         Error::input(format!("{}: [{section}] {key} {what}{line}", self.origin))
     }
 
-    fn int_at_least(&self, section: &str, key: &str, v: Option<i64>, min: i64, default: i64) -> Result<usize> {
+    fn int_at_least(
+        &self,
+        section: &str,
+        key: &str,
+        v: Option<i64>,
+        min: i64,
+        default: i64,
+    ) -> Result<usize> {
         let v = v.unwrap_or(default);
         if v < min {
             return Err(self.fail(section, key, format!("must be at least {min}, got {v}")));
@@ -103,16 +113,20 @@ impl Checker<'_> {
 
     fn positive(&self, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !(x.is_finite() && x > 0.0) => {
-                Err(self.fail("prior", key, format!("must be a positive finite number, got {x}")))
-            }
+            Some(x) if !(x.is_finite() && x > 0.0) => Err(self.fail(
+                "prior",
+                key,
+                format!("must be a positive finite number, got {x}"),
+            )),
             other => Ok(other),
         }
     }
 
     fn finite(&self, section: &str, key: &str, v: Option<f64>) -> Result<Option<f64>> {
         match v {
-            Some(x) if !x.is_finite() => Err(self.fail(section, key, format!("must be finite, got {x}"))),
+            Some(x) if !x.is_finite() => {
+                Err(self.fail(section, key, format!("must be finite, got {x}")))
+            }
             other => Ok(other),
         }
     }
@@ -166,7 +180,13 @@ pub fn resolve(
     let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 1000)?;
     let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
     let seed = match s.seed {
-        Some(v) if v < 0 => return Err(ck.fail("sampler", "seed", format!("must be a non-negative integer, got {v}"))),
+        Some(v) if v < 0 => {
+            return Err(ck.fail(
+                "sampler",
+                "seed",
+                format!("must be a non-negative integer, got {v}"),
+            ))
+        }
         Some(v) => v as u64,
         None => fresh_seed(),
     };
@@ -190,7 +210,11 @@ pub fn resolve(
     let points = ck.int_at_least("grid", "points", g.points, 2, 200)?;
     if let (Some(a), Some(b)) = (from, to) {
         if a >= b {
-            return Err(ck.fail("grid", "from", format!("must be below [grid] to, got from = {a}, to = {b}")));
+            return Err(ck.fail(
+                "grid",
+                "from",
+                format!("must be below [grid] to, got from = {a}, to = {b}"),
+            ));
         }
     }
 
@@ -204,11 +228,19 @@ pub fn resolve(
     let gate = raw.gate.clone().unwrap_or_default();
     let max_rhat = gate.max_rhat.unwrap_or(1.01);
     if !(max_rhat.is_finite() && max_rhat > 1.0) {
-        return Err(ck.fail("gate", "max_rhat", format!("must be a finite number above 1, got {max_rhat}")));
+        return Err(ck.fail(
+            "gate",
+            "max_rhat",
+            format!("must be a finite number above 1, got {max_rhat}"),
+        ));
     }
     let min_ess = gate.min_ess.unwrap_or(400.0);
     if !(min_ess.is_finite() && min_ess > 0.0) {
-        return Err(ck.fail("gate", "min_ess", format!("must be a positive finite number, got {min_ess}")));
+        return Err(ck.fail(
+            "gate",
+            "min_ess",
+            format!("must be a positive finite number, got {min_ess}"),
+        ));
     }
     let min_chains = ck.int_at_least("gate", "min_chains", gate.min_chains, 1, 2)?;
 

@@ -60,7 +60,9 @@ mod tests {
     #[test]
     fn template_parses_and_resolves() {
         let raw = crate::config::parse_config_str(TEMPLATE, "template").unwrap();
-        let cfg = crate::config::resolve(&raw, TEMPLATE, "template", std::path::Path::new("."), None).unwrap();
+        let cfg =
+            crate::config::resolve(&raw, TEMPLATE, "template", std::path::Path::new("."), None)
+                .unwrap();
         assert_eq!(cfg.components, 10);
         assert_eq!(cfg.levels, vec![0.5, 0.9, 0.95]);
     }

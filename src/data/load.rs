@@ -46,7 +46,11 @@ pub fn load_column_from_reader<R: Read>(
             let names: Vec<String> = headers.iter().map(|h| format!("\"{h}\"")).collect();
             Error::input(format!(
                 "{origin}: no column \"{column}\"; the header has {}",
-                if names.is_empty() { "no columns".to_string() } else { names.join(", ") }
+                if names.is_empty() {
+                    "no columns".to_string()
+                } else {
+                    names.join(", ")
+                }
             ))
         })?;
     let mut values = Vec::new();
@@ -57,7 +61,12 @@ pub fn load_column_from_reader<R: Read>(
         match rdr.read_record(&mut record) {
             Ok(false) => break,
             Ok(true) => {}
-            Err(e) => return Err(Error::input(format!("{origin}: {}", describe_csv_error(&e)))),
+            Err(e) => {
+                return Err(Error::input(format!(
+                    "{origin}: {}",
+                    describe_csv_error(&e)
+                )))
+            }
         }
         row += 1;
         let line = record.position().map(|p| p.line()).unwrap_or(0);
@@ -92,7 +101,11 @@ pub fn load_column_from_reader<R: Read>(
     if values.is_empty() {
         return Err(Error::input(format!(
             "{origin}: column \"{column}\" holds no observations{}",
-            if dropped > 0 { format!(" ({dropped} empty cells dropped)") } else { String::new() }
+            if dropped > 0 {
+                format!(" ({dropped} empty cells dropped)")
+            } else {
+                String::new()
+            }
         )));
     }
     Ok(Sample { values, dropped })
@@ -108,7 +121,11 @@ fn truncate(s: &str) -> String {
 
 fn describe_csv_error(e: &csv::Error) -> String {
     match e.kind() {
-        csv::ErrorKind::UnequalLengths { pos, expected_len, len } => format!(
+        csv::ErrorKind::UnequalLengths {
+            pos,
+            expected_len,
+            len,
+        } => format!(
             "line {}: {len} fields where the header has {expected_len}",
             pos.as_ref().map(|p| p.line()).unwrap_or(0)
         ),
@@ -132,11 +149,17 @@ mod tests {
     fn reads_named_column_and_reports_bad_cells() {
         let s = load("id,x\n1,2.5\n2,-1e3\n", MissingPolicy::Error).unwrap();
         assert_eq!(s.values, vec![2.5, -1000.0]);
-        let e = load("id,x\n1,2.5\n2,abc\n", MissingPolicy::Error).unwrap_err().to_string();
+        let e = load("id,x\n1,2.5\n2,abc\n", MissingPolicy::Error)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("line 3") && e.contains("abc"), "{e}");
-        let e = load("id,x\n1,NaN\n", MissingPolicy::Error).unwrap_err().to_string();
+        let e = load("id,x\n1,NaN\n", MissingPolicy::Error)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("data row 1"), "{e}");
-        let e = load("id,y\n1,2\n", MissingPolicy::Error).unwrap_err().to_string();
+        let e = load("id,y\n1,2\n", MissingPolicy::Error)
+            .unwrap_err()
+            .to_string();
         assert!(e.contains("\"id\", \"y\""), "{e}");
         let s = load("id,x\n1,\n2,3\n", MissingPolicy::Drop).unwrap();
         assert_eq!((s.values.clone(), s.dropped), (vec![3.0], 1));

@@ -67,7 +67,13 @@ impl DataSummary {
                 "{origin}: the spread of the observations (sd {sd}) cannot be represented reliably"
             )));
         }
-        Ok(DataSummary { n, mean, sd, min, max })
+        Ok(DataSummary {
+            n,
+            mean,
+            sd,
+            min,
+            max,
+        })
     }
 }
 
@@ -78,9 +84,16 @@ impl Standardised {
         let (centre, scale) = (summary.mean, summary.sd);
         let z: Vec<f64> = x.iter().map(|&v| (v - centre) / scale).collect();
         if z.iter().any(|v| !v.is_finite()) {
-            return Err(Error::input(format!("{origin}: the data cannot be standardised in double precision")));
+            return Err(Error::input(format!(
+                "{origin}: the data cannot be standardised in double precision"
+            )));
         }
-        Ok(Standardised { z, centre, scale, summary })
+        Ok(Standardised {
+            z,
+            centre,
+            scale,
+            summary,
+        })
     }
 
     /// Map a location from standard units back to data units.

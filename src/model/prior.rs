@@ -9,7 +9,10 @@ use crate::config::{HyperChoice, Kernel, RunConfig, WeightsKind};
 pub enum VarScale {
     Fixed(f64),
     /// b ~ Gamma(shape, rate), updated by its conjugate full conditional.
-    Gamma { shape: f64, rate: f64 },
+    Gamma {
+        shape: f64,
+        rate: f64,
+    },
 }
 
 /// The weight-prior concentration: δ (Dirichlet) or α (stick-breaking).

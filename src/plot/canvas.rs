@@ -40,7 +40,10 @@ pub fn svg_document(
 }
 
 fn insert_after_root(svg: &str, extra: &str) -> String {
-    match svg.find("<svg").and_then(|i| svg[i..].find('>').map(|j| i + j + 1)) {
+    match svg
+        .find("<svg")
+        .and_then(|i| svg[i..].find('>').map(|j| i + j + 1))
+    {
         Some(at) => format!("{}\n{}{}", &svg[..at], extra, &svg[at..]),
         None => svg.to_string(),
     }
@@ -75,7 +78,14 @@ pub struct Frame {
 impl Frame {
     /// The frame of a chart, measured by plotters' own coordinate map.
     pub fn of<DB: DrawingBackend>(
-        chart: &ChartContext<'_, DB, Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>>,
+        chart: &ChartContext<
+            '_,
+            DB,
+            Cartesian2d<
+                plotters::coord::types::RangedCoordf64,
+                plotters::coord::types::RangedCoordf64,
+            >,
+        >,
         x: (f64, f64),
         y: (f64, f64),
     ) -> Frame {
@@ -103,14 +113,21 @@ impl Frame {
 /// `<metadata>` element carrying the frame as JSON, with id `mixband-frame`.
 pub fn frame_metadata(frame: &Frame) -> String {
     let json = serde_json::to_string(frame).unwrap_or_default();
-    format!("<metadata id=\"mixband-frame\">{}</metadata>", xml_escape(&json))
+    format!(
+        "<metadata id=\"mixband-frame\">{}</metadata>",
+        xml_escape(&json)
+    )
 }
 
 /// A tick label formatter for an axis spanning `span` with about `ticks` labels: as few
 /// decimals as the spacing needs, exponent notation for very large or small magnitudes.
 pub fn tick_formatter(span: f64, ticks: usize) -> impl Fn(&f64) -> String {
     let step = (span / ticks.max(1) as f64).abs();
-    let decimals = if step > 0.0 { (-step.log10().floor()).max(0.0) as usize + 1 } else { 2 };
+    let decimals = if step > 0.0 {
+        (-step.log10().floor()).max(0.0) as usize + 1
+    } else {
+        2
+    };
     let big = span.abs() >= 1e6 || (span.abs() < 1e-4 && span != 0.0);
     move |v: &f64| {
         if big {
@@ -124,7 +141,11 @@ pub fn tick_formatter(span: f64, ticks: usize) -> impl Fn(&f64) -> String {
 
 fn trim_zeros(s: &str) -> String {
     if !s.contains('.') {
-        return if s == "-0" { "0".to_string() } else { s.to_string() };
+        return if s == "-0" {
+            "0".to_string()
+        } else {
+            s.to_string()
+        };
     }
     let t = s.trim_end_matches('0').trim_end_matches('.');
     if t == "-0" || t.is_empty() {
@@ -141,7 +162,9 @@ pub fn font(size: u32, colour: RGBColor) -> TextStyle<'static> {
 
 /// A bold font of the house style.
 pub fn bold(size: u32, colour: RGBColor) -> TextStyle<'static> {
-    (style::FONT, size, FontStyle::Bold).into_font().color(&colour)
+    (style::FONT, size, FontStyle::Bold)
+        .into_font()
+        .color(&colour)
 }
 
 /// Padded y range of values (a constant series gets a symmetric pad).

@@ -32,25 +32,73 @@ pub fn grid_diagnostics_svg(inp: &RunInputs, g: &GridDiagnostics) -> Result<Stri
         draw_legend(
             root,
             &[
-                ("value at the grid point".into(), LegendMark::Line(style::MEAN_LINE)),
+                (
+                    "value at the grid point".into(),
+                    LegendMark::Line(style::MEAN_LINE),
+                ),
                 ("gate threshold".into(), LegendMark::Dashed(style::ACCENT)),
-                ("fails the threshold".into(), LegendMark::Swatch(style::ALERT_FILL)),
+                (
+                    "fails the threshold".into(),
+                    LegendMark::Swatch(style::ALERT_FILL),
+                ),
             ],
             66,
         )?;
         let body = root.margin(88, 12, 10, 24);
         let panels = body.split_evenly((2, 1));
-        let rhat: Vec<f64> = g.rhat.iter().map(|&r| if r.is_finite() { r.min(RHAT_CAP) } else { RHAT_CAP }).collect();
-        let capped = g.rhat.iter().any(|&r| !(r <= RHAT_CAP));
+        let rhat: Vec<f64> = g
+            .rhat
+            .iter()
+            .map(|&r| {
+                if r.is_finite() {
+                    r.min(RHAT_CAP)
+                } else {
+                    RHAT_CAP
+                }
+            })
+            .collect();
+        let capped = g.rhat.iter().any(|&r| r.is_nan() || r > RHAT_CAP);
         let rmax = rhat.iter().copied().fold(g.max_rhat, f64::max);
         let rmin = rhat.iter().copied().fold(1.0, f64::min);
         let pad = ((rmax - rmin) * 0.1).max(0.002);
-        let rfail: Vec<bool> = g.rhat.iter().map(|&r| !(r <= g.max_rhat)).collect();
-        let label = if capped { format!("R-hat (values above {RHAT_CAP} drawn at {RHAT_CAP})") } else { "R-hat".into() };
-        panel(&panels[0], inp, &g.x, &rhat, (rmin - pad, rmax + pad), g.max_rhat, &rfail, &label, false)?;
+        let rfail: Vec<bool> = g
+            .rhat
+            .iter()
+            .map(|&r| r.is_nan() || r > g.max_rhat)
+            .collect();
+        let label = if capped {
+            format!("R-hat (values above {RHAT_CAP} drawn at {RHAT_CAP})")
+        } else {
+            "R-hat".into()
+        };
+        panel(
+            &panels[0],
+            inp,
+            &g.x,
+            &rhat,
+            (rmin - pad, rmax + pad),
+            g.max_rhat,
+            &rfail,
+            &label,
+            false,
+        )?;
         let emax = g.ess_bulk.iter().copied().fold(g.min_ess, f64::max) * 1.1;
-        let efail: Vec<bool> = g.ess_bulk.iter().map(|&e| !(e >= g.min_ess)).collect();
-        panel(&panels[1], inp, &g.x, &g.ess_bulk, (0.0, emax), g.min_ess, &efail, "bulk effective sample size", true)?;
+        let efail: Vec<bool> = g
+            .ess_bulk
+            .iter()
+            .map(|&e| e.is_nan() || e < g.min_ess)
+            .collect();
+        panel(
+            &panels[1],
+            inp,
+            &g.x,
+            &g.ess_bulk,
+            (0.0, emax),
+            g.min_ess,
+            &efail,
+            "bulk effective sample size",
+            true,
+        )?;
         Ok(())
     })
 }
@@ -93,8 +141,16 @@ fn panel(
     mesh.draw().map_err(plot_err)?;
     // Shade each failing grid point's share of the axis (half-way to its neighbours).
     let half = |i: usize| -> (f64, f64) {
-        let l = if i == 0 { x[0] } else { 0.5 * (x[i - 1] + x[i]) };
-        let r = if i + 1 == x.len() { x[i] } else { 0.5 * (x[i] + x[i + 1]) };
+        let l = if i == 0 {
+            x[0]
+        } else {
+            0.5 * (x[i - 1] + x[i])
+        };
+        let r = if i + 1 == x.len() {
+            x[i]
+        } else {
+            0.5 * (x[i] + x[i + 1])
+        };
         (l, r)
     };
     chart
@@ -126,7 +182,11 @@ fn panel(
         nfail,
         x.len()
     );
-    area.draw(&Text::new(text, (86, py.start - base - 20), bold(style::NOTE_SIZE, style::INK).pos(top_left())))
-        .map_err(plot_err)?;
+    area.draw(&Text::new(
+        text,
+        (86, py.start - base - 20),
+        bold(style::NOTE_SIZE, style::INK).pos(top_left()),
+    ))
+    .map_err(plot_err)?;
     Ok(())
 }

@@ -42,7 +42,10 @@ impl Histogram {
         Histogram {
             start: lo,
             width,
-            density: counts.iter().map(|&c| c as f64 / (n as f64 * width)).collect(),
+            density: counts
+                .iter()
+                .map(|&c| c as f64 / (n as f64 * width))
+                .collect(),
         }
     }
 

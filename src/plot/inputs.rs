@@ -36,7 +36,10 @@ impl StoredBands {
     /// Reads and checks bands.json (every array the grid's length, every value finite).
     pub fn read(path: &Path) -> Result<StoredBands> {
         let text = std::fs::read_to_string(path).map_err(|e| {
-            Error::input(format!("cannot read {}: {e}; run `mixband bands RUN` first", path.display()))
+            Error::input(format!(
+                "cannot read {}: {e}; run `mixband bands RUN` first",
+                path.display()
+            ))
         })?;
         let b: StoredBands = serde_json::from_str(&text)
             .map_err(|e| Error::input(format!("{}: unreadable bands file: {e}", path.display())))?;
@@ -132,7 +135,12 @@ impl RunInputs {
                 }
                 let bytes = std::fs::read(recorded).map_err(|e| Error::io(recorded, e))?;
                 let text = std::fs::read_to_string(&cfg).map_err(|e| Error::io(&cfg, e))?;
-                Prepared::from_text(&text, &cfg.display().to_string(), &layout.root, Some(&bytes))
+                Prepared::from_text(
+                    &text,
+                    &cfg.display().to_string(),
+                    &layout.root,
+                    Some(&bytes),
+                )
             }
         }
     }
@@ -140,7 +148,9 @@ impl RunInputs {
     /// The axis label of the measurement: the column name, with the configured units.
     pub fn value_label(&self) -> String {
         match &self.prep.config.units {
-            Some(u) if !u.trim().is_empty() => format!("{} ({})", self.prep.config.column, u.trim()),
+            Some(u) if !u.trim().is_empty() => {
+                format!("{} ({})", self.prep.config.column, u.trim())
+            }
             _ => self.prep.config.column.clone(),
         }
     }

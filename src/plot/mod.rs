@@ -36,7 +36,11 @@ pub struct Figures {
 }
 
 /// Renders every figure.
-pub fn render(inp: &RunInputs, opts: DensityOptions, grid: Option<&GridDiagnostics>) -> Result<Figures> {
+pub fn render(
+    inp: &RunInputs,
+    opts: DensityOptions,
+    grid: Option<&GridDiagnostics>,
+) -> Result<Figures> {
     Ok(Figures {
         density: density_svg(inp, opts)?,
         trace: trace_svg(inp)?,

@@ -29,7 +29,11 @@ impl Quantity {
 /// shares it and `sd_1` is that common value).
 pub fn scalar_quantities(draws: &RunDraws, location_kernel: bool) -> Vec<Quantity> {
     let series = |f: &dyn Fn(&crate::store::DrawRow) -> f64| -> Vec<Vec<f64>> {
-        draws.chains.iter().map(|c| c.rows.iter().map(f).collect()).collect()
+        draws
+            .chains
+            .iter()
+            .map(|c| c.rows.iter().map(f).collect())
+            .collect()
     };
     let mut q = vec![
         Quantity {
@@ -106,7 +110,10 @@ mod tests {
     #[test]
     fn average_ranks_match_scipy_docs_example() {
         // scipy.stats.rankdata([0, 2, 3, 2]) = [1, 2.5, 4, 2.5] (scipy documentation example).
-        assert_eq!(average_ranks(&[0.0, 2.0, 3.0, 2.0]), vec![1.0, 2.5, 4.0, 2.5]);
+        assert_eq!(
+            average_ranks(&[0.0, 2.0, 3.0, 2.0]),
+            vec![1.0, 2.5, 4.0, 2.5]
+        );
     }
 
     #[test]

@@ -19,7 +19,10 @@ use crate::error::Result;
 /// 1..=S where S is the pooled number of draws.
 pub fn rank_counts(chains: &[Vec<f64>], bins: usize) -> Vec<Vec<usize>> {
     let len = chains.iter().map(Vec::len).min().unwrap_or(0);
-    let pooled: Vec<f64> = chains.iter().flat_map(|c| c[..len].iter().copied()).collect();
+    let pooled: Vec<f64> = chains
+        .iter()
+        .flat_map(|c| c[..len].iter().copied())
+        .collect();
     let ranks = tie_broken_ranks(&pooled);
     let total = pooled.len() as f64;
     chains
@@ -133,7 +136,10 @@ fn draw_row(row: &Area<'_>, q: &Quantity, inp: &RunInputs) -> Result<()> {
         let colour = style::chain_colour(c);
         chart
             .draw_series(cnt.iter().enumerate().map(|(b, &n)| {
-                Rectangle::new([(b as f64 + 0.08, 0.0), (b as f64 + 0.92, n as f64)], colour.mix(0.8).filled())
+                Rectangle::new(
+                    [(b as f64 + 0.08, 0.0), (b as f64 + 0.92, n as f64)],
+                    colour.mix(0.8).filled(),
+                )
             }))
             .map_err(plot_err)?;
         chart

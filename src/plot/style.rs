@@ -77,7 +77,11 @@ pub const TRACE_MAX_POINTS: usize = 1500;
 /// the widest is the lightest tint, the narrowest the strongest.
 pub fn band_fill(i: usize, count: usize) -> RGBColor {
     let (lo, hi) = (0.22, 0.62);
-    let t = if count <= 1 { 0.45 } else { lo + (hi - lo) * i as f64 / (count - 1) as f64 };
+    let t = if count <= 1 {
+        0.45
+    } else {
+        lo + (hi - lo) * i as f64 / (count - 1) as f64
+    };
     mix(PAPER, BAND_HUE, t)
 }
 
@@ -88,7 +92,11 @@ pub fn chain_colour(i: usize) -> RGBColor {
 
 /// `a` moved a fraction `t` of the way towards `b`.
 pub fn mix(a: RGBColor, b: RGBColor, t: f64) -> RGBColor {
-    let m = |x: u8, y: u8| (x as f64 + (y as f64 - x as f64) * t).round().clamp(0.0, 255.0) as u8;
+    let m = |x: u8, y: u8| {
+        (x as f64 + (y as f64 - x as f64) * t)
+            .round()
+            .clamp(0.0, 255.0) as u8
+    };
     RGBColor(m(a.0, b.0), m(a.1, b.1), m(a.2, b.2))
 }
 

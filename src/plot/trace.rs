@@ -14,7 +14,10 @@ use crate::error::Result;
 pub fn trace_svg(inp: &RunInputs) -> Result<String> {
     let qs = scalar_quantities(&inp.draws, inp.is_location_kernel());
     let head = 92;
-    let size = (style::TRACE_PANEL.0, head + style::TRACE_PANEL.1 * qs.len() as u32 + 8);
+    let size = (
+        style::TRACE_PANEL.0,
+        head + style::TRACE_PANEL.1 * qs.len() as u32 + 8,
+    );
     let title = "Traces of the chains".to_string();
     svg_document(size, &title, None, |root: &Area<'_>| {
         draw_heading(root, &title, inp, inp.bands.converged == Some(false))?;
@@ -23,7 +26,12 @@ pub fn trace_svg(inp: &RunInputs) -> Result<String> {
             .chains
             .iter()
             .enumerate()
-            .map(|(i, c)| (format!("chain {}", c.chain), LegendMark::Line(style::chain_colour(i))))
+            .map(|(i, c)| {
+                (
+                    format!("chain {}", c.chain),
+                    LegendMark::Line(style::chain_colour(i)),
+                )
+            })
             .collect();
         draw_legend(root, &legend, 66)?;
         let body = root.margin(head as i32 - 4, 8, 14, 24);
@@ -51,8 +59,18 @@ pub(super) fn thin_indices(len: usize, max: usize) -> Vec<usize> {
 
 fn draw_panel(area: &Area<'_>, q: &Quantity, bottom: bool) -> Result<()> {
     let len = q.chains.iter().map(Vec::len).max().unwrap_or(0).max(2);
-    let lo = q.chains.iter().flatten().copied().fold(f64::INFINITY, f64::min);
-    let hi = q.chains.iter().flatten().copied().fold(f64::NEG_INFINITY, f64::max);
+    let lo = q
+        .chains
+        .iter()
+        .flatten()
+        .copied()
+        .fold(f64::INFINITY, f64::min);
+    let hi = q
+        .chains
+        .iter()
+        .flatten()
+        .copied()
+        .fold(f64::NEG_INFINITY, f64::max);
     let (y0, y1) = padded_range(lo, hi, 0.06);
     let x1 = len as f64;
     let mut chart = ChartBuilder::on(area)
@@ -88,7 +106,11 @@ fn draw_panel(area: &Area<'_>, q: &Quantity, bottom: bool) -> Result<()> {
             .map_err(plot_err)?;
     }
     let (_, py) = chart.plotting_area().get_pixel_range();
-    let note = if q.is_constant() { format!("{} (constant)", q.label) } else { q.label.to_string() };
+    let note = if q.is_constant() {
+        format!("{} (constant)", q.label)
+    } else {
+        q.label.to_string()
+    };
     area.draw(&Text::new(
         note,
         (92, py.start - area.get_base_pixel().1 - 22),

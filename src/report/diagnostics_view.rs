@@ -38,7 +38,10 @@ fn num(v: &Value, key: &str) -> Option<f64> {
 
 fn text_list(v: Option<&Value>) -> Vec<String> {
     match v {
-        Some(Value::Array(a)) => a.iter().filter_map(|s| s.as_str().map(str::to_string)).collect(),
+        Some(Value::Array(a)) => a
+            .iter()
+            .filter_map(|s| s.as_str().map(str::to_string))
+            .collect(),
         Some(Value::String(s)) => vec![s.clone()],
         _ => Vec::new(),
     }
@@ -51,8 +54,9 @@ impl DiagnosticsView {
             return Ok(None);
         }
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        let v: Value = serde_json::from_str(&text)
-            .map_err(|e| Error::input(format!("{}: unreadable diagnostics: {e}", path.display())))?;
+        let v: Value = serde_json::from_str(&text).map_err(|e| {
+            Error::input(format!("{}: unreadable diagnostics: {e}", path.display()))
+        })?;
         Self::from_json(&v)
             .map(Some)
             .map_err(|m| Error::input(format!("{}: {m}", path.display())))
@@ -61,7 +65,10 @@ impl DiagnosticsView {
     /// From the parsed diagnostics document: `passed`, `thresholds` (an object) and
     /// `quantities` (objects with `name`, `rhat`, `ess_bulk`, `ess_tail`, `mcse_mean`).
     pub fn from_json(v: &Value) -> std::result::Result<DiagnosticsView, String> {
-        let passed = v.get("passed").and_then(Value::as_bool).ok_or("no boolean \"passed\"")?;
+        let passed = v
+            .get("passed")
+            .and_then(Value::as_bool)
+            .ok_or("no boolean \"passed\"")?;
         let mut thresholds = Vec::new();
         if let Some(Value::Object(t)) = v.get("thresholds") {
             for (k, val) in t {
@@ -78,15 +85,22 @@ impl DiagnosticsView {
         let mut rows = Vec::new();
         if let Some(Value::Array(qs)) = v.get("quantities") {
             for q in qs {
-                let name = q.get("name").and_then(Value::as_str).ok_or("a quantity without a name")?;
+                let name = q
+                    .get("name")
+                    .and_then(Value::as_str)
+                    .ok_or("a quantity without a name")?;
                 let rhat = num(q, "rhat");
                 let ess_bulk = num(q, "ess_bulk");
                 let ess_tail = num(q, "ess_tail");
-                let failing = q.get("passed").and_then(Value::as_bool).map(|p| !p).unwrap_or_else(|| {
-                    rhat.zip(max_rhat).is_some_and(|(r, m)| r > m)
-                        || ess_bulk.zip(min_ess).is_some_and(|(e, m)| e < m)
-                        || ess_tail.zip(min_ess).is_some_and(|(e, m)| e < m)
-                });
+                let failing = q
+                    .get("passed")
+                    .and_then(Value::as_bool)
+                    .map(|p| !p)
+                    .unwrap_or_else(|| {
+                        rhat.zip(max_rhat).is_some_and(|(r, m)| r > m)
+                            || ess_bulk.zip(min_ess).is_some_and(|(e, m)| e < m)
+                            || ess_tail.zip(min_ess).is_some_and(|(e, m)| e < m)
+                    });
                 rows.push(DiagRow {
                     name: name.to_string(),
                     rhat,

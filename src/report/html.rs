@@ -6,6 +6,7 @@ use std::fmt::Write as _;
 
 use super::diagnostics_view::DiagnosticsView;
 use super::encode::{base64, html_escape, utc_date};
+use crate::plot::canvas::tick_formatter;
 use crate::plot::{style, Figures, RunInputs};
 use crate::summary::level_label;
 
@@ -40,7 +41,11 @@ pub fn verdict(inp: &RunInputs, diag: Option<&DiagnosticsView>) -> Verdict {
 /// Four significant digits, plain for moderate magnitudes.
 pub fn sig4(v: f64) -> String {
     if !v.is_finite() {
-        return if v.is_nan() { "—".into() } else { "∞".into() };
+        return if v.is_nan() {
+            "—".into()
+        } else {
+            "∞".into()
+        };
     }
     if v == 0.0 {
         return "0".into();
@@ -62,9 +67,9 @@ fn inline_svg(svg: &str) -> &str {
 }
 
 fn figure(out: &mut String, svg: &str, caption: &str) {
-    let _ = write!(
+    let _ = writeln!(
         out,
-        "<figure>{}<figcaption>{}</figcaption></figure>\n",
+        "<figure>{}<figcaption>{}</figcaption></figure>",
         inline_svg(svg),
         html_escape(caption)
     );
@@ -84,9 +89,9 @@ fn banner(out: &mut String, p: &PageParts<'_>) {
         .unwrap_or_default();
     match v {
         Verdict::Converged => {
-            let _ = write!(
+            let _ = writeln!(
                 out,
-                "<div class=\"banner ok\" id=\"verdict\"><strong>CONVERGED</strong> · the chains passed the convergence gate{}.</div>\n",
+                "<div class=\"banner ok\" id=\"verdict\"><strong>CONVERGED</strong> · the chains passed the convergence gate{}.</div>",
                 if thresholds.is_empty() { String::new() } else { format!(" ({})", html_escape(&thresholds)) }
             );
         }
@@ -102,11 +107,11 @@ fn banner(out: &mut String, p: &PageParts<'_>) {
                     out.push_str("</ul>");
                 }
             }
-            let _ = write!(
+            let _ = writeln!(
                 out,
                 "<p>What to try: more draws (<code>mixband extend {run} --draws N</code>); a longer warm-up or more chains \
                  (edit the config and sample again); the other kernel (location instead of location-scale, or the reverse); \
-                 then look at the trace and rank plots below for the quantity that fails.</p></div>\n"
+                 then look at the trace and rank plots below for the quantity that fails.</p></div>"
             );
         }
         Verdict::NotAssessed => {
@@ -141,28 +146,56 @@ fn metadata(out: &mut String, inp: &RunInputs) {
             },
         ),
         ("seed", m.seed.to_string()),
-        ("model", format!("{:?} kernel, {:?} weights, K = {}", c.kernel, c.weights, c.components)),
+        (
+            "model",
+            format!(
+                "{:?} kernel, {:?} weights, K = {}",
+                c.kernel, c.weights, c.components
+            ),
+        ),
         (
             "sampling",
-            format!("{} chains × {} kept draws (warm-up {}, thin {})", c.chains, c.draws, c.warmup, c.thin),
+            format!(
+                "{} chains × {} kept draws (warm-up {}, thin {})",
+                c.chains, c.draws, c.warmup, c.thin
+            ),
         ),
         ("draws used for the bands", inp.bands.draws_used.to_string()),
         (
             "levels",
-            inp.bands.levels.iter().map(|l| format!("{}%", level_label(*l))).collect::<Vec<_>>().join(", "),
+            inp.bands
+                .levels
+                .iter()
+                .map(|l| format!("{}%", level_label(*l)))
+                .collect::<Vec<_>>()
+                .join(", "),
         ),
-        (
-            "grid",
-            format!("{} points from {} to {}", inp.bands.grid.len(), sig4(inp.bands.grid[0]), sig4(*inp.bands.grid.last().unwrap_or(&0.0))),
-        ),
+        ("grid", {
+            let g = &inp.bands.grid;
+            let fx = tick_formatter(g[g.len() - 1] - g[0], 20);
+            format!(
+                "{} points from {} to {}",
+                g.len(),
+                fx(&g[0]),
+                fx(&g[g.len() - 1])
+            )
+        }),
         (
             "timing",
-            format!("{:.1} s of sampling over all chains; longest chain {:.1} s", total, longest),
+            format!(
+                "{:.1} s of sampling over all chains; longest chain {:.1} s",
+                total, longest
+            ),
         ),
     ];
     out.push_str("<dl class=\"meta\">");
     for (k, v) in rows {
-        let _ = write!(out, "<dt>{}</dt><dd>{}</dd>", html_escape(k), html_escape(&v));
+        let _ = write!(
+            out,
+            "<dt>{}</dt><dd>{}</dd>",
+            html_escape(k),
+            html_escape(&v)
+        );
     }
     out.push_str("</dl>\n");
 }
@@ -173,8 +206,16 @@ fn diagnostics_table(out: &mut String, d: Option<&DiagnosticsView>) {
         return;
     };
     if !d.thresholds.is_empty() {
-        let t: Vec<String> = d.thresholds.iter().map(|(k, v)| format!("{k} = {v}")).collect();
-        let _ = writeln!(out, "<p>Gate thresholds: {}.</p>", html_escape(&t.join(", ")));
+        let t: Vec<String> = d
+            .thresholds
+            .iter()
+            .map(|(k, v)| format!("{k} = {v}"))
+            .collect();
+        let _ = writeln!(
+            out,
+            "<p>Gate thresholds: {}.</p>",
+            html_escape(&t.join(", "))
+        );
     }
     out.push_str("<table id=\"diagnostics\"><thead><tr><th>quantity</th><th>R-hat</th><th>bulk ESS</th><th>tail ESS</th><th>MCSE of mean</th><th></th></tr></thead><tbody>");
     let cell = |v: Option<f64>| v.map(sig4).unwrap_or_else(|| "—".into());
@@ -209,10 +250,10 @@ fn bands_section(out: &mut String, p: &PageParts<'_>) {
     let _ = writeln!(
         out,
         "<p><a class=\"download\" id=\"bands-download\" download=\"bands.csv\" href=\"data:text/csv;base64,{}\">Download bands.csv</a> \
-         (all {} grid points; the same file as RUN/bands.csv). Every {}th row is shown below.</p>",
+         (all {} grid points; the same file as RUN/bands.csv). {} evenly spaced rows are shown below.</p>",
         base64(p.bands_csv.as_bytes()),
         b.grid.len(),
-        (b.grid.len() / 15).max(1)
+        preview_rows(b.grid.len(), 15).len()
     );
     out.push_str("<table id=\"bands\"><thead><tr><th>x</th><th>mean</th>");
     let order = b.widest_first();
@@ -221,10 +262,21 @@ fn bands_section(out: &mut String, p: &PageParts<'_>) {
         let _ = write!(out, "<th>{lab}% lower</th><th>{lab}% upper</th>");
     }
     out.push_str("</tr></thead><tbody>");
+    let fx = tick_formatter(b.grid[b.grid.len() - 1] - b.grid[0], 15);
     for i in preview_rows(b.grid.len(), 15) {
-        let _ = write!(out, "<tr><td>{}</td><td>{}</td>", sig4(b.grid[i]), sig4(b.mean[i]));
+        let _ = write!(
+            out,
+            "<tr><td>{}</td><td>{}</td>",
+            fx(&b.grid[i]),
+            sig4(b.mean[i])
+        );
         for &l in &order {
-            let _ = write!(out, "<td>{}</td><td>{}</td>", sig4(b.bands[l].lower[i]), sig4(b.bands[l].upper[i]));
+            let _ = write!(
+                out,
+                "<td>{}</td><td>{}</td>",
+                sig4(b.bands[l].lower[i]),
+                sig4(b.bands[l].upper[i])
+            );
         }
         out.push_str("</tr>");
     }
@@ -238,8 +290,16 @@ pub fn page(p: &PageParts<'_>) -> String {
     let mut out = String::with_capacity(1 << 20);
     out.push_str("<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n");
     out.push_str("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n<link rel=\"icon\" href=\"data:,\"/>\n");
-    let _ = writeln!(out, "<title>mixband report: {}</title>", html_escape(column));
-    let _ = writeln!(out, "<style>{}</style>\n</head>\n<body>\n<main>", style::report_css());
+    let _ = writeln!(
+        out,
+        "<title>mixband report: {}</title>",
+        html_escape(column)
+    );
+    let _ = writeln!(
+        out,
+        "<style>{}</style>\n</head>\n<body>\n<main>",
+        style::report_css()
+    );
     let _ = writeln!(out, "<h1>Density of {}</h1>", html_escape(column));
     let _ = writeln!(
         out,

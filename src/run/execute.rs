@@ -152,11 +152,14 @@ pub fn execute(
     } else {
         ProgressDrawTarget::stderr()
     });
-    let style = ProgressStyle::with_template("chain {prefix} {bar:40} {pos}/{len} sweeps {elapsed_precise} eta {eta}")
-        .unwrap_or_else(|_| ProgressStyle::default_bar());
+    let style = ProgressStyle::with_template(
+        "chain {prefix} {bar:40} {pos}/{len} sweeps {elapsed_precise} eta {eta}",
+    )
+    .unwrap_or_else(|_| ProgressStyle::default_bar());
 
     let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
-    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
+    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> =
+        jobs.iter().map(|_| Mutex::new(None)).collect();
     let next = AtomicUsize::new(0);
     let workers = opts.threads.max(1).min(jobs.len().max(1));
     let chains = manifest.chains.clone();
@@ -172,8 +175,18 @@ pub fn execute(
                 bar.set_style(style.clone());
                 bar.set_prefix(rec.id.to_string());
                 let t0 = Instant::now();
-                let r = run_one(prep, &layout, rec.id, plan, units, x, bar.clone(), opts.stop, mode)
-                    .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
+                let r = run_one(
+                    prep,
+                    &layout,
+                    rec.id,
+                    plan,
+                    units,
+                    x,
+                    bar.clone(),
+                    opts.stop,
+                    mode,
+                )
+                .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
                 bar.finish_and_clear();
                 if let Ok(mut slot) = results[i].lock() {
                     *slot = Some(r);
@@ -211,13 +224,23 @@ pub fn execute(
             }
         }
     }
-    let done = manifest.chains.iter().all(|c| c.sweeps_done == plan.total_sweeps());
-    manifest.status = if done { RunStatus::Complete } else { RunStatus::Incomplete };
+    let done = manifest
+        .chains
+        .iter()
+        .all(|c| c.sweeps_done == plan.total_sweeps());
+    manifest.status = if done {
+        RunStatus::Complete
+    } else {
+        RunStatus::Incomplete
+    };
     manifest.write(&layout.manifest())?;
     if let Some(e) = first_error {
         return Err(e);
     }
-    Ok(RunOutcome { manifest, interrupted })
+    Ok(RunOutcome {
+        manifest,
+        interrupted,
+    })
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -237,7 +260,8 @@ fn run_one(
     let state_path = layout.chain_state(id);
     let (mut writer, start) = match mode {
         Mode::Fresh { .. } => {
-            let w = ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
+            let w =
+                ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
             let start = Checkpoint {
                 sweeps_done: 0,
                 state: initial_state(x, &prep.prior, &key),

@@ -65,8 +65,8 @@ pub fn write_bands(layout: &RunLayout, bands: &Bands, converged: Option<bool>) -
             })
             .collect(),
     };
-    let mut json =
-        serde_json::to_vec_pretty(&file).map_err(|e| Error::internal(format!("cannot encode bands: {e}")))?;
+    let mut json = serde_json::to_vec_pretty(&file)
+        .map_err(|e| Error::internal(format!("cannot encode bands: {e}")))?;
     json.push(b'\n');
     write_atomic(&layout.bands_json(), &json)
 }

@@ -23,22 +23,35 @@ pub struct Prepared {
 
 /// Lower-case hex SHA-256 of `bytes`.
 pub fn sha256_hex(bytes: &[u8]) -> String {
-    Sha256::digest(bytes).iter().map(|b| format!("{b:02x}")).collect()
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
 }
 
 impl Prepared {
     /// From a config file on disk; its data file is read relative to the config's folder.
     pub fn from_config_file(path: &Path) -> Result<Prepared> {
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| Error::input(format!("cannot read config file {}: {e}", path.display())))?;
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            Error::input(format!("cannot read config file {}: {e}", path.display()))
+        })?;
         let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
-        let dir = if dir.as_os_str().is_empty() { std::path::PathBuf::from(".") } else { dir };
+        let dir = if dir.as_os_str().is_empty() {
+            std::path::PathBuf::from(".")
+        } else {
+            dir
+        };
         Self::from_text(&text, &path.display().to_string(), &dir, None)
     }
 
     /// From config text. `data_bytes`, when given, is used instead of reading the data file
     /// (the embedded demo).
-    pub fn from_text(text: &str, origin: &str, dir: &Path, data_bytes: Option<&[u8]>) -> Result<Prepared> {
+    pub fn from_text(
+        text: &str,
+        origin: &str,
+        dir: &Path,
+        data_bytes: Option<&[u8]>,
+    ) -> Result<Prepared> {
         let raw = parse_config_str(text, origin)?;
         // Check everything that does not depend on the data before touching the data.
         let pre = resolve(&raw, text, origin, dir, None)?;

@@ -36,7 +36,8 @@ impl ComponentTable {
         };
         for j in 0..k {
             let v = state.var[j];
-            t.log_const.push(state.log_w[j] - 0.5 * v.ln() - LN_SQRT_2PI);
+            t.log_const
+                .push(state.log_w[j] - 0.5 * v.ln() - LN_SQRT_2PI);
             t.half_prec.push(0.5 / v);
         }
         t

@@ -15,14 +15,24 @@ use crate::config::Kernel;
 use crate::dist::{inv_gamma, normal};
 use crate::model::{Prior, State};
 
-pub fn update_components<R: Rng + ?Sized>(prior: &Prior, stats: &SuffStats, state: &mut State, rng: &mut R) {
+pub fn update_components<R: Rng + ?Sized>(
+    prior: &Prior,
+    stats: &SuffStats,
+    state: &mut State,
+    rng: &mut R,
+) {
     match prior.kernel {
         Kernel::Location => update_location(prior, stats, state, rng),
         Kernel::LocationScale => update_location_scale(prior, stats, state, rng),
     }
 }
 
-fn update_location<R: Rng + ?Sized>(prior: &Prior, stats: &SuffStats, state: &mut State, rng: &mut R) {
+fn update_location<R: Rng + ?Sized>(
+    prior: &Prior,
+    stats: &SuffStats,
+    state: &mut State,
+    rng: &mut R,
+) {
     let k = state.k();
     let sigma2 = state.var[0];
     let prior_prec = 1.0 / (prior.centre_sd * prior.centre_sd);
@@ -37,11 +47,20 @@ fn update_location<R: Rng + ?Sized>(prior: &Prior, stats: &SuffStats, state: &mu
         resid += (stats.sumsq[j] - 2.0 * mu * stats.sum[j] + nk * mu * mu).max(0.0);
     }
     let n = stats.total() as f64;
-    let v = inv_gamma(prior.var_shape + 0.5 * n, state.var_scale + 0.5 * resid, rng);
+    let v = inv_gamma(
+        prior.var_shape + 0.5 * n,
+        state.var_scale + 0.5 * resid,
+        rng,
+    );
     state.var.iter_mut().for_each(|s| *s = v);
 }
 
-fn update_location_scale<R: Rng + ?Sized>(prior: &Prior, stats: &SuffStats, state: &mut State, rng: &mut R) {
+fn update_location_scale<R: Rng + ?Sized>(
+    prior: &Prior,
+    stats: &SuffStats,
+    state: &mut State,
+    rng: &mut R,
+) {
     let (m, kappa, a) = (prior.centre, prior.centre_shrink, prior.var_shape);
     for j in 0..state.k() {
         let nk = stats.n[j] as f64;

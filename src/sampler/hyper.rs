@@ -24,7 +24,9 @@ pub fn update_var_scale<R: Rng + ?Sized>(prior: &Prior, state: &mut State, rng: 
 }
 
 pub fn update_concentration<R: Rng + ?Sized>(prior: &Prior, state: &mut State, rng: &mut R) {
-    if let (WeightsKind::StickBreaking, Concentration::Gamma { shape, rate }) = (prior.weights, prior.concentration) {
+    if let (WeightsKind::StickBreaking, Concentration::Gamma { shape, rate }) =
+        (prior.weights, prior.concentration)
+    {
         let k = state.k();
         let sum_log: f64 = state.log_1mv[..k - 1].iter().sum();
         state.concentration = gamma_rate(shape + (k - 1) as f64, rate - sum_log, rng);

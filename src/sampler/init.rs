@@ -35,7 +35,13 @@ pub fn initial_state(x: &[f64], prior: &Prior, key: &StreamKey) -> State {
         // v_j = 1/(K − j) gives equal weights.
         state.log_v = (0..k).map(|j| -((k - j) as f64).ln()).collect();
         state.log_1mv = (0..k)
-            .map(|j| if j + 1 == k { 0.0 } else { (((k - j - 1) as f64) / ((k - j) as f64)).ln() })
+            .map(|j| {
+                if j + 1 == k {
+                    0.0
+                } else {
+                    (((k - j - 1) as f64) / ((k - j) as f64)).ln()
+                }
+            })
             .collect();
         state.weights_from_sticks();
     }

@@ -17,7 +17,13 @@ pub struct SweepOutcome {
 }
 
 /// Advances `state` by one sweep numbered `index` (from 1).
-pub fn sweep(x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, index: u64) -> SweepOutcome {
+pub fn sweep(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+) -> SweepOutcome {
     let table = ComponentTable::new(state);
     let alloc = allocate(x, &table, key, index);
     let mut rng = key.sweep_rng(index);

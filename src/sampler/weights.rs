@@ -11,7 +11,12 @@ use crate::config::WeightsKind;
 use crate::dist::{log_beta, log_dirichlet};
 use crate::model::State;
 
-pub fn update_weights<R: Rng + ?Sized>(weights: WeightsKind, n: &[u64], state: &mut State, rng: &mut R) {
+pub fn update_weights<R: Rng + ?Sized>(
+    weights: WeightsKind,
+    n: &[u64],
+    state: &mut State,
+    rng: &mut R,
+) {
     let k = n.len();
     match weights {
         WeightsKind::Dirichlet => {
@@ -26,7 +31,8 @@ pub fn update_weights<R: Rng + ?Sized>(weights: WeightsKind, n: &[u64], state: &
                     state.log_v[j] = 0.0;
                     state.log_1mv[j] = 0.0;
                 } else {
-                    let (lv, l1mv) = log_beta(1.0 + n[j] as f64, state.concentration + tail as f64, rng);
+                    let (lv, l1mv) =
+                        log_beta(1.0 + n[j] as f64, state.concentration + tail as f64, rng);
                     state.log_v[j] = lv;
                     state.log_1mv[j] = l1mv;
                 }

@@ -53,7 +53,13 @@ pub struct ChainWriter {
 
 impl ChainWriter {
     /// Starts a new table at `path` (which must not exist).
-    pub fn create(chain: u64, path: &Path, state_path: &Path, k: usize, units: Units) -> Result<Self> {
+    pub fn create(
+        chain: u64,
+        path: &Path,
+        state_path: &Path,
+        k: usize,
+        units: Units,
+    ) -> Result<Self> {
         let f = OpenOptions::new()
             .write(true)
             .create_new(true)
@@ -61,13 +67,20 @@ impl ChainWriter {
             .map_err(|e| Error::io(path, e))?;
         let mut w = Self::wrap(chain, f, path, state_path, 0, 0, units);
         let h = header(k);
-        w.file.write_all(h.as_bytes()).map_err(|e| Error::io(path, e))?;
+        w.file
+            .write_all(h.as_bytes())
+            .map_err(|e| Error::io(path, e))?;
         w.bytes = h.len() as u64;
         Ok(w)
     }
 
     /// Reopens a table to continue after `stored`: bytes past the checkpoint are cut off.
-    pub fn reopen(path: &Path, state_path: &Path, stored: &StoredCheckpoint, units: Units) -> Result<Self> {
+    pub fn reopen(
+        path: &Path,
+        state_path: &Path,
+        stored: &StoredCheckpoint,
+        units: Units,
+    ) -> Result<Self> {
         let f = OpenOptions::new()
             .write(true)
             .open(path)
@@ -81,7 +94,15 @@ impl ChainWriter {
             )));
         }
         f.set_len(stored.bytes).map_err(|e| Error::io(path, e))?;
-        let mut w = Self::wrap(stored.chain, f, path, state_path, stored.bytes, stored.draws_written, units);
+        let mut w = Self::wrap(
+            stored.chain,
+            f,
+            path,
+            state_path,
+            stored.bytes,
+            stored.draws_written,
+            units,
+        );
         use std::io::Seek;
         w.file
             .get_mut()
@@ -90,7 +111,15 @@ impl ChainWriter {
         Ok(w)
     }
 
-    fn wrap(chain: u64, f: File, path: &Path, state_path: &Path, bytes: u64, draws: u64, units: Units) -> Self {
+    fn wrap(
+        chain: u64,
+        f: File,
+        path: &Path,
+        state_path: &Path,
+        bytes: u64,
+        draws: u64,
+        units: Units,
+    ) -> Self {
         ChainWriter {
             chain,
             file: BufWriter::with_capacity(1 << 16, f),
@@ -130,7 +159,13 @@ impl DrawSink for ChainWriter {
                 self.chain, d.iteration
             )));
         }
-        line.push_str(&format!("{},{},{},{}", d.iteration, fmt_f64(ll), d.occupied, fmt_f64(s.concentration)));
+        line.push_str(&format!(
+            "{},{},{},{}",
+            d.iteration,
+            fmt_f64(ll),
+            d.occupied,
+            fmt_f64(s.concentration)
+        ));
         for j in 0..s.k() {
             let w = s.log_w[j].exp();
             let m = u.centre + u.scale * s.mu[j];
@@ -230,8 +265,13 @@ fn parse_chain(text: &str, origin: &str, chain: u64) -> Result<ChainDraws> {
         .next()
         .ok_or_else(|| Error::input(format!("{origin}: empty draw table")))?;
     let fields = head.split(',').count();
-    if fields < 7 || (fields - 4) % 3 != 0 || !head.starts_with("iteration,loglik,occupied,concentration") {
-        return Err(Error::input(format!("{origin}: not a mixband draw table (header \"{head}\")")));
+    if fields < 7
+        || (fields - 4) % 3 != 0
+        || !head.starts_with("iteration,loglik,occupied,concentration")
+    {
+        return Err(Error::input(format!(
+            "{origin}: not a mixband draw table (header \"{head}\")"
+        )));
     }
     let k = (fields - 4) / 3;
     let mut rows = Vec::new();

@@ -64,9 +64,14 @@ impl Manifest {
     }
 
     pub fn read(path: &Path) -> Result<Manifest> {
-        let text = std::fs::read_to_string(path)
-            .map_err(|e| Error::input(format!("cannot read {}: {e}; is this a mixband run directory?", path.display())))?;
-        serde_json::from_str(&text).map_err(|e| Error::input(format!("{}: unreadable manifest: {e}", path.display())))
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            Error::input(format!(
+                "cannot read {}: {e}; is this a mixband run directory?",
+                path.display()
+            ))
+        })?;
+        serde_json::from_str(&text)
+            .map_err(|e| Error::input(format!("{}: unreadable manifest: {e}", path.display())))
     }
 
     pub fn chain_ids(&self) -> Vec<u64> {

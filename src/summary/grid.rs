@@ -4,7 +4,13 @@
 pub fn linspace(from: f64, to: f64, points: usize) -> Vec<f64> {
     let step = (to - from) / (points - 1) as f64;
     (0..points)
-        .map(|i| if i + 1 == points { to } else { from + step * i as f64 })
+        .map(|i| {
+            if i + 1 == points {
+                to
+            } else {
+                from + step * i as f64
+            }
+        })
         .collect()
 }
 

@@ -7,7 +7,9 @@ use std::path::{Path, PathBuf};
 fn normals(n: usize, seed: u64) -> Vec<f64> {
     let mut s = seed;
     let mut u = || {
-        s = s.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+        s = s
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
         ((s >> 11) as f64 + 0.5) / (1u64 << 53) as f64
     };
     (0..n)
@@ -24,7 +26,11 @@ pub fn make_run(dir: &Path, n: usize, extra_args: &[&str]) -> PathBuf {
     let z = normals(n, 42);
     let mut csv = String::from("length\n");
     for (i, v) in z.iter().enumerate() {
-        let x = if i % 3 == 0 { 30.0 + 1.5 * v } else { 36.0 + 2.0 * v };
+        let x = if i % 3 == 0 {
+            30.0 + 1.5 * v
+        } else {
+            36.0 + 2.0 * v
+        };
         csv.push_str(&format!("{x}\n"));
     }
     std::fs::write(dir.join("data.csv"), csv).unwrap();
@@ -61,7 +67,12 @@ pub fn scratch(name: &str) -> PathBuf {
 pub fn read_bands_csv(path: &Path) -> (Vec<String>, Vec<Vec<f64>>) {
     let text = std::fs::read_to_string(path).unwrap();
     let mut lines = text.lines();
-    let head: Vec<String> = lines.next().unwrap().split(',').map(str::to_string).collect();
+    let head: Vec<String> = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .map(str::to_string)
+        .collect();
     let mut cols = vec![Vec::new(); head.len()];
     for l in lines {
         for (i, c) in l.split(',').enumerate() {
