@@ -166,3 +166,38 @@ fn plotting_a_folder_that_is_not_a_run_fails_cleanly() {
     assert_eq!(code, 2);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn kernel_estimate_matches_scipy_at_silvermans_bandwidth() {
+    // Fixture from tests/reference/kde_silverman.py: Silverman (1986) eq. 3.31 computed
+    // with numpy, density from scipy.stats.gaussian_kde (versions in the fixture).
+    let text = include_str!("reference/fixtures/kde_silverman.json");
+    let fx: serde_json::Value = serde_json::from_str(text).unwrap();
+    let cases = fx["cases"].as_object().unwrap();
+    assert_eq!(cases.len(), 2);
+    let vec = |v: &serde_json::Value| -> Vec<f64> {
+        v.as_array()
+            .unwrap()
+            .iter()
+            .map(|a| a.as_f64().unwrap())
+            .collect()
+    };
+    for (name, c) in cases {
+        let x = vec(&c["x"]);
+        let h = mixband::plot::kde::silverman_bandwidth(&x);
+        let want_h = c["bandwidth"].as_f64().unwrap();
+        assert!(
+            (h - want_h).abs() <= 1e-12 * want_h,
+            "{name}: bandwidth {h} vs {want_h}"
+        );
+        let grid = vec(&c["grid"]);
+        let want = vec(&c["density"]);
+        let got = mixband::plot::kde::gaussian_kde(&x, h, &grid);
+        for (g, (a, b)) in got.iter().zip(&want).enumerate() {
+            assert!(
+                (a - b).abs() <= 1e-10 * b.max(1e-3),
+                "{name}: density at grid point {g}: {a} vs {b}"
+            );
+        }
+    }
+}
