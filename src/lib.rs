@@ -15,6 +15,7 @@
 //! - [`store`]: the run directory (draws, checkpoints, manifest);
 //! - [`summary`]: densities on a grid and pointwise bands;
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
+//! - [`gate`]: the convergence gate on a run's label-invariant quantities;
 //! - [`run`]: the whole job; [`cli`]: the thin command line over it.
 
 pub mod cli;
@@ -23,6 +24,7 @@ pub mod data;
 pub mod diagnostics;
 pub mod dist;
 pub mod error;
+pub mod gate;
 pub mod model;
 pub mod numfmt;
 pub mod plot;

@@ -4,24 +4,35 @@ use std::path::Path;
 
 use crate::config::resolve_check_levels;
 use crate::error::{Error, Result};
+use crate::gate::{assess, DiagnosticsReport, GateSpec};
 use crate::run::{write_bands, Prepared};
-use crate::store::{read_run_draws, Manifest, RunLayout};
+use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
 use crate::summary::{linspace, Bands, DensityDraws};
 
-/// Reads the draws of a run and writes bands.csv / bands.json on the configured grid.
-pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<()> {
+/// Reads the draws of a run, assesses them against the convergence gate, and writes
+/// diagnostics.json and bands.csv / bands.json (flagged with the verdict) on the configured
+/// grid. Returns the assessment.
+pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<DiagnosticsReport> {
     let c = &prep.config;
-    write_for_grid(layout, c.grid_from, c.grid_to, c.grid_points, &c.levels)
+    let manifest = Manifest::read(&layout.manifest())?;
+    let (draws, dens) = densities(layout, &manifest, c.grid_from, c.grid_to, c.grid_points)?;
+    let report = assess(
+        &draws,
+        &dens,
+        &GateSpec::from_config(c, manifest.status == RunStatus::Complete),
+    );
+    report.write(layout)?;
+    write_bands(layout, &Bands::new(&dens, &c.levels), Some(report.passed))?;
+    Ok(report)
 }
 
-fn write_for_grid(
+fn densities(
     layout: &RunLayout,
+    manifest: &Manifest,
     from: f64,
     to: f64,
     points: usize,
-    levels: &[f64],
-) -> Result<()> {
-    let manifest = Manifest::read(&layout.manifest())?;
+) -> Result<(RunDraws, DensityDraws)> {
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
     if draws.min_len() == 0 {
         return Err(Error::input(format!(
@@ -31,8 +42,23 @@ fn write_for_grid(
     }
     let grid = linspace(from, to, points);
     let dens = DensityDraws::new(&draws, &grid);
-    let bands = Bands::new(&dens, levels);
-    write_bands(layout, &bands, None)
+    Ok((draws, dens))
+}
+
+/// Bands on another grid; they carry the verdict of the run's diagnostics.json, if any.
+fn write_for_grid(
+    layout: &RunLayout,
+    from: f64,
+    to: f64,
+    points: usize,
+    levels: &[f64],
+) -> Result<()> {
+    let manifest = Manifest::read(&layout.manifest())?;
+    let (_, dens) = densities(layout, &manifest, from, to, points)?;
+    let converged = DiagnosticsReport::read(&layout.diagnostics_json())
+        .ok()
+        .map(|r| r.passed);
+    write_bands(layout, &Bands::new(&dens, levels), converged)
 }
 
 pub(super) fn bands(

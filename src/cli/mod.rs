@@ -3,6 +3,7 @@
 
 mod bands;
 mod demo;
+mod diagnose;
 mod plot;
 mod report;
 mod sample;
@@ -120,6 +121,27 @@ pub enum Command {
         #[arg(long)]
         with_kde: bool,
     },
+    /// Check a run's convergence: R-hat, ESS and MCSE of label-invariant quantities
+    /// against the gate; exit 3 when it fails.
+    #[command(after_help = EXIT_CODES)]
+    Diagnose {
+        run: PathBuf,
+        /// Print the report as JSON (the format of RUN/diagnostics.json).
+        #[arg(long)]
+        json: bool,
+        /// Also list per-component parameters (not label-invariant; never gated).
+        #[arg(long)]
+        components: bool,
+        /// Largest R-hat that passes (default: the run's [gate] max_rhat).
+        #[arg(long)]
+        max_rhat: Option<f64>,
+        /// Smallest bulk and tail ESS that pass (default: the run's [gate] min_ess).
+        #[arg(long)]
+        min_ess: Option<f64>,
+        /// Fewest chains that pass (default: the run's [gate] min_chains).
+        #[arg(long)]
+        min_chains: Option<usize>,
+    },
     /// Print a commented starter config listing every key.
     Template,
 }
@@ -145,6 +167,23 @@ pub fn run(cli: Cli) -> Result<i32> {
         } => bands::bands(&run, points, from, to, levels),
         Command::Plot { run, with_kde } => plot::plot(&run, with_kde),
         Command::Report { run, with_kde } => report::report(&run, with_kde),
+        Command::Diagnose {
+            run,
+            json,
+            components,
+            max_rhat,
+            min_ess,
+            min_chains,
+        } => diagnose::diagnose(
+            &run,
+            json,
+            components,
+            &crate::gate::ThresholdOverrides {
+                max_rhat,
+                min_ess,
+                min_chains,
+            },
+        ),
         Command::Template => {
             print!("{}", crate::config::TEMPLATE);
             Ok(0)

@@ -69,13 +69,13 @@ pub(super) fn finish(
         )));
     }
     let layout = RunLayout::new(out);
-    super::bands::summarise(&layout, prep)?;
+    let report = super::bands::summarise(&layout, prep)?;
     if !opts.no_report {
-        let report = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
-        println!("mixband: report in {}", report.display());
+        let page = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
+        println!("mixband: report in {}", page.display());
     }
     println!("mixband: wrote {}", out.display());
-    Ok(0)
+    Ok(super::diagnose::print_verdict(&report))
 }
 
 pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) -> Result<i32> {

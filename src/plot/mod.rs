@@ -77,10 +77,15 @@ pub fn write_figures(run: &Path, figs: &Figures) -> Result<Vec<PathBuf>> {
     Ok(out)
 }
 
-/// R-hat and bulk-ESS of the density at each point of the bands' grid, from the stored
-/// draws (chains cut to the shortest), with the gate thresholds of the run's config.
-/// `None` when the draws are too few for the diagnostics.
+/// R-hat and bulk-ESS of the density at each point of the bands' grid, with the gate's
+/// thresholds. Taken from RUN/diagnostics.json when the gate assessed the same grid (so
+/// the figure shows the numbers behind the verdict); otherwise computed from the stored
+/// draws (chains cut to the shortest) with the config's thresholds. `None` when the draws
+/// are too few for the diagnostics.
 pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
+    if let Some(g) = gate_grid(inp) {
+        return Ok(Some(g));
+    }
     let dens = crate::summary::DensityDraws::new(&inp.draws, &inp.bands.grid);
     let mut rhat = Vec::with_capacity(dens.grid.len());
     let mut ess_bulk = Vec::with_capacity(dens.grid.len());
@@ -112,4 +117,32 @@ pub fn plot_run(run: &Path, opts: DensityOptions) -> Result<(RunInputs, Figures,
     let figs = render(&inp, opts, grid.as_ref())?;
     let paths = write_figures(run, &figs)?;
     Ok((inp, figs, paths))
+}
+
+/// The gate's per-grid-point numbers, when diagnostics.json exists, covers the bands' grid
+/// point for point, and has R-hat and bulk-ESS at every point.
+fn gate_grid(inp: &RunInputs) -> Option<GridDiagnostics> {
+    let path = inp.layout.diagnostics_json();
+    if !path.exists() {
+        return None;
+    }
+    let r = crate::gate::DiagnosticsReport::read(&path).ok()?;
+    let grid = &inp.bands.grid;
+    let same = r.density_grid.len() == grid.len()
+        && r.density_grid
+            .iter()
+            .zip(grid)
+            .all(|(p, &x)| (p.x - x).abs() <= 1e-9 * x.abs().max(1.0));
+    if !same {
+        return None;
+    }
+    let rhat: Option<Vec<f64>> = r.density_grid.iter().map(|p| p.rhat).collect();
+    let ess: Option<Vec<f64>> = r.density_grid.iter().map(|p| p.ess_bulk).collect();
+    Some(GridDiagnostics {
+        x: grid.clone(),
+        rhat: rhat?,
+        ess_bulk: ess?,
+        max_rhat: r.thresholds.max_rhat,
+        min_ess: r.thresholds.min_ess,
+    })
 }

@@ -1,12 +1,11 @@
-//! What the report shows of a run's convergence checks, read from RUN/diagnostics.json
-//! (written by the diagnostics gate). The report never computes a verdict of its own: when
-//! the file is absent, it says that convergence was not assessed.
+//! What the report shows of a run's convergence checks, taken from RUN/diagnostics.json
+//! (written by the gate, [`crate::gate::DiagnosticsReport`]). The report never computes a
+//! verdict of its own: when the file is absent, it says that convergence was not assessed.
 
 use std::path::Path;
 
-use serde_json::Value;
-
-use crate::error::{Error, Result};
+use crate::error::Result;
+use crate::gate::DiagnosticsReport;
 
 /// One row of the diagnostics table.
 #[derive(Debug, Clone, PartialEq)]
@@ -16,7 +15,7 @@ pub struct DiagRow {
     pub ess_bulk: Option<f64>,
     pub ess_tail: Option<f64>,
     pub mcse_mean: Option<f64>,
-    /// Whether this row fails a threshold (shown in the alert colour).
+    /// Whether the gate failed this row (shown in the alert colour).
     pub failing: bool,
     pub note: Option<String>,
 }
@@ -25,26 +24,15 @@ pub struct DiagRow {
 #[derive(Debug, Clone, PartialEq)]
 pub struct DiagnosticsView {
     pub passed: bool,
-    /// Threshold name and value, as stated in diagnostics.json.
+    /// Threshold name and value.
     pub thresholds: Vec<(String, String)>,
     pub rows: Vec<DiagRow>,
-    /// Why the gate failed and what to try, in the gate's own words.
-    pub messages: Vec<String>,
-}
-
-fn num(v: &Value, key: &str) -> Option<f64> {
-    v.get(key).and_then(Value::as_f64)
-}
-
-fn text_list(v: Option<&Value>) -> Vec<String> {
-    match v {
-        Some(Value::Array(a)) => a
-            .iter()
-            .filter_map(|s| s.as_str().map(str::to_string))
-            .collect(),
-        Some(Value::String(s)) => vec![s.clone()],
-        _ => Vec::new(),
-    }
+    /// Why the gate failed, in the gate's own words.
+    pub failures: Vec<String>,
+    /// What to try, in the gate's own words.
+    pub advice: Vec<String>,
+    /// Facts that qualify the numbers.
+    pub notes: Vec<String>,
 }
 
 impl DiagnosticsView {
@@ -53,72 +41,38 @@ impl DiagnosticsView {
         if !path.exists() {
             return Ok(None);
         }
-        let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
-        let v: Value = serde_json::from_str(&text).map_err(|e| {
-            Error::input(format!("{}: unreadable diagnostics: {e}", path.display()))
-        })?;
-        Self::from_json(&v)
-            .map(Some)
-            .map_err(|m| Error::input(format!("{}: {m}", path.display())))
+        Ok(Some(Self::from_report(&DiagnosticsReport::read(path)?)))
     }
 
-    /// From the parsed diagnostics document: `passed`, `thresholds` (an object) and
-    /// `quantities` (objects with `name`, `rhat`, `ess_bulk`, `ess_tail`, `mcse_mean`).
-    pub fn from_json(v: &Value) -> std::result::Result<DiagnosticsView, String> {
-        let passed = v
-            .get("passed")
-            .and_then(Value::as_bool)
-            .ok_or("no boolean \"passed\"")?;
-        let mut thresholds = Vec::new();
-        if let Some(Value::Object(t)) = v.get("thresholds") {
-            for (k, val) in t {
-                let s = match val {
-                    Value::Number(n) => n.to_string(),
-                    Value::String(s) => s.clone(),
-                    other => other.to_string(),
-                };
-                thresholds.push((k.clone(), s));
-            }
-        }
-        let max_rhat = v.get("thresholds").and_then(|t| num(t, "max_rhat"));
-        let min_ess = v.get("thresholds").and_then(|t| num(t, "min_ess"));
-        let mut rows = Vec::new();
-        if let Some(Value::Array(qs)) = v.get("quantities") {
-            for q in qs {
-                let name = q
-                    .get("name")
-                    .and_then(Value::as_str)
-                    .ok_or("a quantity without a name")?;
-                let rhat = num(q, "rhat");
-                let ess_bulk = num(q, "ess_bulk");
-                let ess_tail = num(q, "ess_tail");
-                let failing = q
-                    .get("passed")
-                    .and_then(Value::as_bool)
-                    .map(|p| !p)
-                    .unwrap_or_else(|| {
-                        rhat.zip(max_rhat).is_some_and(|(r, m)| r > m)
-                            || ess_bulk.zip(min_ess).is_some_and(|(e, m)| e < m)
-                            || ess_tail.zip(min_ess).is_some_and(|(e, m)| e < m)
-                    });
-                rows.push(DiagRow {
-                    name: name.to_string(),
-                    rhat,
-                    ess_bulk,
-                    ess_tail,
-                    mcse_mean: num(q, "mcse_mean"),
-                    failing,
-                    note: q.get("note").and_then(Value::as_str).map(str::to_string),
-                });
-            }
-        }
-        let mut messages = text_list(v.get("failures"));
-        messages.extend(text_list(v.get("advice")));
-        Ok(DiagnosticsView {
-            passed,
-            thresholds,
+    /// The label-invariant quantities of the gate's report (per-component parameters are
+    /// left out: they are not label-invariant and never decide the verdict).
+    pub fn from_report(r: &DiagnosticsReport) -> DiagnosticsView {
+        let t = &r.thresholds;
+        let rows = r
+            .quantities
+            .iter()
+            .filter(|q| q.label_invariant)
+            .map(|q| DiagRow {
+                name: q.name.clone(),
+                rhat: q.rhat,
+                ess_bulk: q.ess_bulk,
+                ess_tail: q.ess_tail,
+                mcse_mean: q.mcse_mean,
+                failing: q.gated && !q.passed,
+                note: q.note.clone(),
+            })
+            .collect();
+        DiagnosticsView {
+            passed: r.passed,
+            thresholds: vec![
+                ("max R-hat".into(), format!("{}", t.max_rhat)),
+                ("min ESS".into(), format!("{}", t.min_ess)),
+                ("min chains".into(), format!("{}", t.min_chains)),
+            ],
             rows,
-            messages,
-        })
+            failures: r.failures.clone(),
+            advice: r.advice.clone(),
+            notes: r.notes.clone(),
+        }
     }
 }

@@ -98,21 +98,30 @@ fn banner(out: &mut String, p: &PageParts<'_>) {
         Verdict::NotConverged => {
             let run = html_escape(&p.inputs.layout.root.display().to_string());
             out.push_str("<div class=\"banner fail\" id=\"verdict\"><strong>NOT CONVERGED</strong> · the chains failed the convergence gate; do not report these bands.");
-            if let Some(d) = p.diagnostics {
-                if !d.messages.is_empty() {
-                    out.push_str("<ul>");
-                    for m in &d.messages {
-                        let _ = write!(out, "<li>{}</li>", html_escape(m));
+            let failures = p.diagnostics.map(|d| d.failures.as_slice()).unwrap_or(&[]);
+            if !failures.is_empty() {
+                out.push_str("<ul>");
+                for m in failures {
+                    let _ = write!(out, "<li>{}</li>", html_escape(m));
+                }
+                out.push_str("</ul>");
+            }
+            out.push_str("<p>What to try:</p><ul>");
+            match p.diagnostics.map(|d| d.advice.as_slice()) {
+                Some(advice) if !advice.is_empty() => {
+                    for a in advice {
+                        let _ = write!(out, "<li>{}</li>", html_escape(a));
                     }
-                    out.push_str("</ul>");
+                }
+                _ => {
+                    let _ = write!(
+                        out,
+                        "<li>more draws: <code>mixband extend {run} --draws N</code></li><li>a longer warm-up or more chains \
+                         (edit the config and sample again)</li><li>the other kernel (location instead of location-scale, or the reverse)</li>"
+                    );
                 }
             }
-            let _ = writeln!(
-                out,
-                "<p>What to try: more draws (<code>mixband extend {run} --draws N</code>); a longer warm-up or more chains \
-                 (edit the config and sample again); the other kernel (location instead of location-scale, or the reverse); \
-                 then look at the trace and rank plots below for the quantity that fails.</p></div>"
-            );
+            out.push_str("</ul><p>The trace and rank plots below show which quantity does not mix.</p></div>\n");
         }
         Verdict::NotAssessed => {
             out.push_str(
@@ -233,6 +242,13 @@ fn diagnostics_table(out: &mut String, d: Option<&DiagnosticsView>) {
         );
     }
     out.push_str("</tbody></table>\n");
+    if !d.notes.is_empty() {
+        out.push_str("<ul>");
+        for n in &d.notes {
+            let _ = write!(out, "<li>{}</li>", html_escape(n));
+        }
+        out.push_str("</ul>\n");
+    }
 }
 
 /// Rows of the bands preview: about `max` evenly spaced grid points.

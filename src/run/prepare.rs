@@ -79,6 +79,10 @@ impl Prepared {
         let data = Standardised::new(&sample.values, &pre.data_file.display().to_string())?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
+        // RUN/config.toml must find the data from inside the run directory (sample it again,
+        // `bands`, `resume`, `extend`), so it records the absolute path, not the path as
+        // written relative to the original config's folder.
+        config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let s = data.summary;
         let record = DataRecord {

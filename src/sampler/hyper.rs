@@ -11,6 +11,17 @@ use crate::config::{Kernel, WeightsKind};
 use crate::dist::gamma_rate;
 use crate::model::{Concentration, Prior, State, VarScale};
 
+/// Sets hyperparameters that the prior holds fixed, so a state built by hand cannot
+/// silently run a different model.
+pub fn pin_fixed(prior: &Prior, state: &mut State) {
+    if let VarScale::Fixed(b) = prior.var_scale {
+        state.var_scale = b;
+    }
+    if let Concentration::Fixed(c) = prior.concentration {
+        state.concentration = c;
+    }
+}
+
 pub fn update_var_scale<R: Rng + ?Sized>(prior: &Prior, state: &mut State, rng: &mut R) {
     if let VarScale::Gamma { shape, rate } = prior.var_scale {
         let vars: &[f64] = match prior.kernel {

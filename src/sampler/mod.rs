@@ -7,12 +7,17 @@
 
 pub mod allocate;
 pub mod chain;
-mod components;
-mod hyper;
+// The single full conditionals are public (hidden from the docs) so the joint-distribution
+// tests can rebuild a sweep with one conditional deliberately wrong.
+#[doc(hidden)]
+pub mod components;
+#[doc(hidden)]
+pub mod hyper;
 mod init;
 pub mod rng;
 mod sweep;
-mod weights;
+#[doc(hidden)]
+pub mod weights;
 
 pub use allocate::{ComponentTable, SuffStats};
 pub use chain::{run_chain, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};

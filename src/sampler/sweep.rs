@@ -2,7 +2,7 @@
 
 use super::allocate::{allocate, ComponentTable};
 use super::components::update_components;
-use super::hyper::{update_concentration, update_var_scale};
+use super::hyper::{pin_fixed, update_concentration, update_var_scale};
 use super::rng::StreamKey;
 use super::weights::update_weights;
 use crate::model::{Prior, State};
@@ -24,6 +24,7 @@ pub fn sweep(
     key: &StreamKey,
     index: u64,
 ) -> SweepOutcome {
+    pin_fixed(prior, state);
     let table = ComponentTable::new(state);
     let alloc = allocate(x, &table, key, index);
     let mut rng = key.sweep_rng(index);

@@ -1,0 +1,95 @@
+//! What to try when the gate fails, chosen from the kinds of failure.
+
+use super::failure::{Failure, FailureKind};
+
+/// Facts the advice needs besides the failures.
+#[derive(Debug, Clone, Copy)]
+pub(super) struct AdviceContext {
+    pub chains: usize,
+    pub draws_per_chain: usize,
+    pub min_ess: f64,
+    pub min_chains: usize,
+}
+
+/// Extra draws per chain that should lift `lowest` ESS to `min_ess`, assuming ESS grows in
+/// proportion to the draws (common practice, no source), with a 20% margin, rounded up to 100.
+fn extra_draws(draws: usize, lowest: f64, min_ess: f64) -> Option<usize> {
+    if draws == 0 || lowest <= 0.0 || !lowest.is_finite() {
+        return None;
+    }
+    let need = (draws as f64 * 1.2 * min_ess / lowest - draws as f64).max(0.0);
+    let rounded = ((need / 100.0).ceil() * 100.0).clamp(100.0, 1e9);
+    Some(rounded as usize)
+}
+
+/// One piece of advice per kind of failure, in a fixed order.
+pub(super) fn advice(failures: &[Failure], c: AdviceContext) -> Vec<String> {
+    let has = |k: FailureKind| failures.iter().any(|f| f.kind == k);
+    let mut out = Vec::new();
+    if has(FailureKind::TooFewChains) {
+        out.push(format!(
+            "More chains: set [sampler] chains to at least {} and sample again (a run cannot gain chains); \
+             with one chain R-hat only compares its two halves and cannot see chains that settle in different places",
+            c.min_chains.max(2)
+        ));
+    }
+    if has(FailureKind::Unavailable) {
+        out.push(format!(
+            "More draws: the diagnostics need at least 4 draws per chain, and the gate needs an ESS of {}; \
+             this run has {} per chain",
+            c.min_ess, c.draws_per_chain
+        ));
+    }
+    if has(FailureKind::EssBulk) || has(FailureKind::EssTail) {
+        let lowest = failures
+            .iter()
+            .filter(|f| matches!(f.kind, FailureKind::EssBulk | FailureKind::EssTail))
+            .filter_map(|f| f.value)
+            .fold(f64::INFINITY, f64::min);
+        let how = match extra_draws(c.draws_per_chain, lowest, c.min_ess) {
+            Some(n) => format!(
+                "; about {n} more per chain (`mixband extend <run> --draws {n}`) should lift the lowest ESS \
+                 ({lowest:.0}) above {}",
+                c.min_ess
+            ),
+            None => String::new(),
+        };
+        out.push(format!(
+            "More draws: ESS grows roughly in proportion to the number of draws{how}. \
+             Thinning does not raise ESS per sweep"
+        ));
+    }
+    if has(FailureKind::Rhat) {
+        out.push(
+            "Longer warm-up ([sampler] warmup) and more draws: the chains do not agree yet. If R-hat stays high \
+             in a long run the chains have settled in different modes (these quantities ignore label switching, \
+             so it is not that): try more chains to see how many places they find, another kernel \
+             ([model] kernel) or another weights prior ([model] weights, components)"
+                .to_string(),
+        );
+    }
+    if has(FailureKind::Stuck) {
+        out.push(
+            "A chain did not move for half its length or more: use a longer warm-up, and if it persists try \
+             another kernel or weights prior, or wider priors on the component variances"
+                .to_string(),
+        );
+    }
+    if c.chains == 0 {
+        out.push("No chains: is the run directory complete?".to_string());
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn extra_draws_scale_with_the_shortfall() {
+        // 1000 draws gave ESS 200; 400 needs about 2000 in all, 2400 with the margin.
+        assert_eq!(extra_draws(1000, 200.0, 400.0), Some(1400));
+        assert_eq!(extra_draws(1000, 390.0, 400.0), Some(300));
+        assert_eq!(extra_draws(0, 200.0, 400.0), None);
+    }
+}

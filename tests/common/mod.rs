@@ -1,0 +1,102 @@
+//! Helpers shared by the statistical integration tests: Monte Carlo standard errors by
+//! batch means, normal and Kolmogorov critical values, the Kolmogorov–Smirnov statistic,
+//! and scratch directories. Each test file uses a subset, hence the `dead_code` allowance.
+#![allow(dead_code)]
+
+use std::path::PathBuf;
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+use statrs::distribution::{ContinuousCDF, Normal};
+
+/// Mean of `x`.
+pub fn mean(x: &[f64]) -> f64 {
+    x.iter().sum::<f64>() / x.len() as f64
+}
+
+/// Sample variance of `x` (divisor n − 1).
+pub fn var(x: &[f64]) -> f64 {
+    let m = mean(x);
+    x.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (x.len() - 1) as f64
+}
+
+/// Monte Carlo standard error of the mean of a stationary series by non-overlapping batch
+/// means with batch size ⌊√n⌋ (Flegal, Haran & Jones 2008, "Markov chain Monte Carlo: can
+/// we trust the third significant figure?", Statistical Science 23; from memory). For iid
+/// draws it estimates sd/√n, like the naive formula.
+pub fn batch_means_se(x: &[f64]) -> f64 {
+    let n = x.len();
+    let b = (n as f64).sqrt().floor() as usize;
+    let a = n / b;
+    let used = a * b;
+    let m = mean(&x[..used]);
+    let batch: Vec<f64> = x[..used].chunks(b).map(mean).collect();
+    let s2 = batch.iter().map(|v| (v - m) * (v - m)).sum::<f64>() / (a - 1) as f64;
+    (s2 / a as f64).sqrt()
+}
+
+/// Two-sided standard-normal critical value at family-wise level `alpha` over `tests`
+/// tests (Bonferroni): Φ⁻¹(1 − α / (2 · tests)).
+pub fn bonferroni_z(alpha: f64, tests: usize) -> f64 {
+    Normal::new(0.0, 1.0)
+        .unwrap()
+        .inverse_cdf(1.0 - alpha / (2.0 * tests as f64))
+}
+
+/// Kolmogorov's limiting distribution P(√n D_n ≤ t) = 1 − 2 Σ_{k≥1} (−1)^{k−1} e^{−2k²t²}
+/// (Kolmogorov 1933; e.g. Massey 1951, JASA 46, "The Kolmogorov–Smirnov test for
+/// goodness of fit").
+pub fn kolmogorov_cdf(t: f64) -> f64 {
+    if t <= 0.0 {
+        return 0.0;
+    }
+    let mut s = 0.0;
+    for k in 1..=100 {
+        let k = k as f64;
+        let term = (-2.0 * k * k * t * t).exp();
+        s += if k as u64 % 2 == 1 { term } else { -term };
+        if term < 1e-18 {
+            break;
+        }
+    }
+    1.0 - 2.0 * s
+}
+
+/// Asymptotic critical value c with P(√n D_n > c) = alpha, by bisection on
+/// [`kolmogorov_cdf`] (c(0.01) ≈ 1.628, c(0.001) ≈ 1.949 in the usual tables).
+pub fn kolmogorov_critical(alpha: f64) -> f64 {
+    let (mut lo, mut hi) = (0.2, 5.0);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if 1.0 - kolmogorov_cdf(mid) > alpha {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+/// One-sample Kolmogorov–Smirnov statistic D_n = sup |F_n − F| given the hypothesised CDF
+/// evaluated at each draw (`u[i] = F(x_i)`); `u` is sorted in place.
+pub fn ks_statistic(u: &mut [f64]) -> f64 {
+    u.sort_by(f64::total_cmp);
+    let n = u.len() as f64;
+    let mut d: f64 = 0.0;
+    for (i, &ui) in u.iter().enumerate() {
+        let i = i as f64;
+        d = d.max((i + 1.0) / n - ui).max(ui - i / n);
+    }
+    d
+}
+
+/// A fresh, empty directory under the system temp dir, unique per process and call.
+pub fn scratch_dir(tag: &str) -> PathBuf {
+    static COUNTER: AtomicUsize = AtomicUsize::new(0);
+    let n = COUNTER.fetch_add(1, Ordering::SeqCst);
+    let dir = std::env::temp_dir().join(format!("mixband-test-{tag}-{}-{n}", std::process::id()));
+    if dir.exists() {
+        std::fs::remove_dir_all(&dir).unwrap();
+    }
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
