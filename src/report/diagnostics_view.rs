@@ -26,6 +26,9 @@ pub struct DiagnosticsView {
     pub passed: bool,
     /// Threshold name and value.
     pub thresholds: Vec<(String, String)>,
+    /// The gate's limits, to mark the failing cells of a failing row.
+    pub max_rhat: f64,
+    pub min_ess: f64,
     pub rows: Vec<DiagRow>,
     /// Why the gate failed, in the gate's own words.
     pub failures: Vec<String>,
@@ -69,6 +72,8 @@ impl DiagnosticsView {
                 ("min ESS".into(), format!("{}", t.min_ess)),
                 ("min chains".into(), format!("{}", t.min_chains)),
             ],
+            max_rhat: t.max_rhat,
+            min_ess: t.min_ess,
             rows,
             failures: r.failures.clone(),
             advice: r.advice.clone(),

@@ -229,10 +229,19 @@ fn diagnostics_table(out: &mut String, d: Option<&DiagnosticsView>) {
     out.push_str("<table id=\"diagnostics\"><thead><tr><th>quantity</th><th>R-hat</th><th>bulk ESS</th><th>tail ESS</th><th>MCSE of mean</th><th></th></tr></thead><tbody>");
     let cell = |v: Option<f64>| v.map(sig4).unwrap_or_else(|| "—".into());
     for r in &d.rows {
-        let class = if r.failing { " class=\"bad\"" } else { "" };
+        let bad = |fails: bool| {
+            if r.failing && fails {
+                " class=\"bad\""
+            } else {
+                ""
+            }
+        };
+        let rhat_bad = bad(r.rhat.is_some_and(|v| v > d.max_rhat));
+        let bulk_bad = bad(r.ess_bulk.is_some_and(|v| v < d.min_ess));
+        let tail_bad = bad(r.ess_tail.is_some_and(|v| v < d.min_ess));
         let _ = write!(
             out,
-            "<tr><td>{}</td><td{class}>{}</td><td{class}>{}</td><td{class}>{}</td><td>{}</td><td>{}</td></tr>",
+            "<tr><td>{}</td><td{rhat_bad}>{}</td><td{bulk_bad}>{}</td><td{tail_bad}>{}</td><td>{}</td><td>{}</td></tr>",
             html_escape(&r.name),
             cell(r.rhat),
             cell(r.ess_bulk),
