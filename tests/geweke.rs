@@ -23,6 +23,7 @@ use mixband::dist::log_beta;
 use mixband::model::{draw_from_prior, simulate_data, Concentration, Prior, State, VarScale};
 use mixband::sampler::allocate::{allocate, loglik, ComponentTable};
 use mixband::sampler::components::update_components;
+use mixband::sampler::concentration::update_concentration_given_counts;
 use mixband::sampler::hyper::{update_concentration, update_var_scale};
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::sweep;
@@ -42,6 +43,8 @@ fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
         kernel,
         weights,
         components: 3,
+        // The label moves have their own joint-distribution test (tests/geweke_label_moves.rs).
+        label_moves: false,
         centre: 0.0,
         centre_sd: 1.5,
         centre_shrink: 0.5,
@@ -83,6 +86,7 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
     // Same streams and order as src/sampler/sweep.rs.
     let alloc = allocate(x, &ComponentTable::new(state), key, t);
     let mut rng = key.sweep_rng(t);
+    update_concentration_given_counts(prior, &alloc.stats.n, state, &mut rng);
     if how == Kernelised::WrongStickTail {
         wrong_sticks(&alloc.stats.n, state, &mut rng);
     } else {

@@ -35,6 +35,8 @@ pub fn combos() -> Vec<(&'static str, Prior)> {
         kernel: Kernel::Location,
         weights: WeightsKind::Dirichlet,
         components: 3,
+        // As in production: the label moves run for stick-breaking weights.
+        label_moves: true,
         centre: 0.0,
         centre_sd: 1.5,
         centre_shrink: 0.5,

@@ -202,7 +202,16 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
             return code;
         }
     };
-    let _ = ctrlc::set_handler(|| STOP.store(true, std::sync::atomic::Ordering::SeqCst));
+    // First Ctrl-C: chains stop after their current sweep and the run is saved; a second
+    // one quits at once (the store then reads like a killed run's: resume still works).
+    let _ = ctrlc::set_handler(|| {
+        if STOP.swap(true, std::sync::atomic::Ordering::SeqCst) {
+            std::process::exit(130);
+        }
+        eprintln!(
+            "mixband: stopping after the current sweep and saving; Ctrl-C again quits at once"
+        );
+    });
     match run(cli) {
         Ok(code) => code,
         Err(e) => {

@@ -5,7 +5,7 @@ use std::path::Path;
 use super::SampleOpts;
 use crate::error::{Error, Result};
 use crate::run::{execute, ExecOptions, Mode, Prepared};
-use crate::store::RunLayout;
+use crate::store::{Manifest, RunLayout, RunStatus};
 
 pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
     let threads = opts.threads.unwrap_or_else(|| {
@@ -79,28 +79,61 @@ pub(super) fn finish(
 }
 
 pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) -> Result<i32> {
+    if extra_draws == Some(0) {
+        return Err(Error::input("--draws must be at least 1"));
+    }
     let layout = RunLayout::new(run);
     let cfg_path = layout.config();
-    if !cfg_path.exists() {
+    if !cfg_path.exists() || !layout.manifest().exists() {
         return Err(Error::input(format!(
-            "{}: no config.toml; is this a mixband run directory?",
+            "{}: no config.toml and manifest.json; is this a mixband run directory?",
             run.display()
         )));
     }
+    let manifest = Manifest::read(&layout.manifest())?;
     let mut prep = Prepared::from_config_file(&cfg_path)?;
-    if let Some(n) = extra_draws {
-        if n == 0 {
-            return Err(Error::input("--draws must be at least 1"));
+    // The data file is compared by its SHA-256 (in `execute`); its path may be written
+    // differently (the demo's copy is relative to the run directory).
+    let without_path = |mut v: serde_json::Value| {
+        if let Some(d) = v.get_mut("data").and_then(|d| d.as_object_mut()) {
+            d.remove("file");
         }
-        let manifest = crate::store::Manifest::read(&layout.manifest())?;
-        if manifest.status != crate::store::RunStatus::Complete {
-            return Err(Error::input(format!(
-                "{} is incomplete; run `mixband resume {}` before extending it",
-                run.display(),
+        v
+    };
+    let now = serde_json::to_value(prep.config.to_raw())
+        .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
+    if without_path(now) != without_path(manifest.config.clone()) {
+        return Err(Error::input(format!(
+            "{} no longer matches the config recorded in {}; a run continues only with the \
+             config it started with (start a new run for a changed config)",
+            cfg_path.display(),
+            layout.manifest().display()
+        )));
+    }
+    match extra_draws {
+        Some(n) => {
+            if manifest.status != RunStatus::Complete {
+                return Err(Error::input(format!(
+                    "{} is incomplete; run `mixband resume {}` before extending it",
+                    run.display(),
+                    run.display()
+                )));
+            }
+            prep.config.draws = prep
+                .config
+                .draws
+                .checked_add(n)
+                .filter(|&d| d <= 1_000_000_000)
+                .ok_or_else(|| Error::input(format!("--draws {n} makes the run too long")))?;
+        }
+        None if manifest.status == RunStatus::Complete => {
+            eprintln!(
+                "mixband: {} is already complete; nothing to resume (use `mixband extend` for more draws)",
                 run.display()
-            )));
+            );
+            return Ok(0);
         }
-        prep.config.draws += n;
+        None => {}
     }
     finish(&prep, run, Mode::Resume, opts, &[])
 }

@@ -91,6 +91,10 @@ pub struct PriorSection {
     pub var_scale_rate: Option<f64>,
     /// δ of the symmetric Dirichlet weight prior.
     pub dirichlet_delta: Option<f64>,
+    /// "fixed" or "gamma": δ fixed at `dirichlet_delta`, or δ ~ Gamma(delta_shape, delta_rate).
+    pub delta_prior: Option<HyperChoice>,
+    pub delta_shape: Option<f64>,
+    pub delta_rate: Option<f64>,
     /// "fixed" or "gamma" for the stick-breaking concentration α.
     pub alpha_prior: Option<HyperChoice>,
     pub alpha: Option<f64>,
@@ -106,6 +110,8 @@ pub struct SamplerSection {
     pub draws: Option<i64>,
     pub thin: Option<i64>,
     pub seed: Option<i64>,
+    /// Label-switching moves for stick-breaking weights (on by default).
+    pub label_moves: Option<bool>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

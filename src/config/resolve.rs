@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use serde::Serialize;
 
-use super::locate::key_line;
+use super::locate::{key_line, section_line};
 use super::raw::*;
 use crate::data::DataSummary;
 use crate::error::{Error, Result};
@@ -22,12 +22,23 @@ pub fn parse_config_file(path: &Path) -> Result<(RawConfig, String)> {
 /// Parses config text; `origin` names it in messages.
 pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
     toml::from_str::<RawConfig>(text).map_err(|e| {
-        Error::input(format!(
-            "{origin}: invalid config: {}",
-            e.to_string().trim_end()
-        ))
+        let msg = e
+            .to_string()
+            .trim_end()
+            .replace("expected i64", "expected an integer")
+            .replace("expected f64", "expected a number")
+            .replace("as i128", "");
+        Error::input(format!("{origin}: invalid config: {msg}"))
     })
 }
+
+/// Largest accepted values of the count keys: beyond them a run could not finish or would
+/// exhaust memory, so they are refused as input errors instead.
+const MAX_CHAINS: i64 = 1000;
+const MAX_COMPONENTS: i64 = 10_000;
+const MAX_SWEEPS: i64 = 1_000_000_000;
+const MAX_THIN: i64 = 1_000_000;
+const MAX_POINTS: i64 = 1_000_000;
 
 /// Data-independent settings of a run.
 #[derive(Debug, Clone, PartialEq)]
@@ -48,6 +59,7 @@ pub struct RunConfig {
     pub draws: usize,
     pub thin: usize,
     pub seed: u64,
+    pub label_moves: bool,
     pub grid_from: f64,
     pub grid_to: f64,
     pub grid_points: usize,
@@ -69,6 +81,9 @@ pub struct PriorValues {
     pub var_scale_shape: f64,
     pub var_scale_rate: f64,
     pub dirichlet_delta: f64,
+    pub delta_prior: HyperChoice,
+    pub delta_shape: f64,
+    pub delta_rate: f64,
     pub alpha_prior: HyperChoice,
     pub alpha: f64,
     pub alpha_shape: f64,
@@ -96,17 +111,32 @@ impl Checker<'_> {
         Error::input(format!("{}: [{section}] {key} {what}{line}", self.origin))
     }
 
-    fn int_at_least(
+    fn missing(&self, section: &str, key: &str) -> Error {
+        let place = section_line(self.text, section)
+            .map(|l| format!(" (section starts at line {l})"))
+            .unwrap_or_else(|| format!(" (add a [{section}] section)"));
+        Error::input(format!(
+            "{}: missing required key [{section}] {key}{place}",
+            self.origin
+        ))
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn int_in(
         &self,
         section: &str,
         key: &str,
         v: Option<i64>,
         min: i64,
+        max: i64,
         default: i64,
     ) -> Result<usize> {
         let v = v.unwrap_or(default);
         if v < min {
             return Err(self.fail(section, key, format!("must be at least {min}, got {v}")));
+        }
+        if v > max {
+            return Err(self.fail(section, key, format!("must be at most {max}, got {v}")));
         }
         usize::try_from(v).map_err(|_| self.fail(section, key, format!("is too large: {v}")))
     }
@@ -149,11 +179,14 @@ pub fn resolve(
     let file = data
         .file
         .clone()
-        .ok_or_else(|| Error::input(format!("{origin}: missing required key [data] file")))?;
+        .ok_or_else(|| ck.missing("data", "file"))?;
+    if file.trim().is_empty() {
+        return Err(ck.fail("data", "file", "must not be empty".into()));
+    }
     let column = data
         .column
         .clone()
-        .ok_or_else(|| Error::input(format!("{origin}: missing required key [data] column")))?;
+        .ok_or_else(|| ck.missing("data", "column"))?;
     if column.trim().is_empty() {
         return Err(ck.fail("data", "column", "must not be empty".into()));
     }
@@ -166,19 +199,30 @@ pub fn resolve(
     let model = raw.model.clone().unwrap_or_default();
     let kernel = model.kernel.unwrap_or(Kernel::LocationScale);
     let weights = model.weights.unwrap_or(WeightsKind::Dirichlet);
-    let components = ck.int_at_least(
+    let components = ck.int_in(
         "model",
         "components",
         model.components,
         1,
+        MAX_COMPONENTS,
         default_components(weights) as i64,
     )?;
 
     let s = raw.sampler.clone().unwrap_or_default();
-    let chains = ck.int_at_least("sampler", "chains", s.chains, 1, 4)?;
-    let warmup = ck.int_at_least("sampler", "warmup", s.warmup, 0, 1000)?;
-    let draws = ck.int_at_least("sampler", "draws", s.draws, 1, 1000)?;
-    let thin = ck.int_at_least("sampler", "thin", s.thin, 1, 1)?;
+    let chains = ck.int_in("sampler", "chains", s.chains, 1, MAX_CHAINS, 4)?;
+    let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 2000)?;
+    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 5000)?;
+    let thin = ck.int_in("sampler", "thin", s.thin, 1, MAX_THIN, 1)?;
+    if (warmup + draws * thin) as i64 > MAX_SWEEPS {
+        return Err(ck.fail(
+            "sampler",
+            "draws",
+            format!(
+                "asks for warmup + draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}",
+                warmup + draws * thin
+            ),
+        ));
+    }
     let seed = match s.seed {
         Some(v) if v < 0 => {
             return Err(ck.fail(
@@ -200,6 +244,8 @@ pub fn resolve(
     let var_scale_shape = ck.positive("var_scale_shape", p.var_scale_shape)?;
     let var_scale_rate = ck.positive("var_scale_rate", p.var_scale_rate)?;
     let dirichlet_delta = ck.positive("dirichlet_delta", p.dirichlet_delta)?;
+    let delta_shape = ck.positive("delta_shape", p.delta_shape)?;
+    let delta_rate = ck.positive("delta_rate", p.delta_rate)?;
     let alpha = ck.positive("alpha", p.alpha)?;
     let alpha_shape = ck.positive("alpha_shape", p.alpha_shape)?;
     let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
@@ -207,7 +253,7 @@ pub fn resolve(
     let g = raw.grid.clone().unwrap_or_default();
     let from = ck.finite("grid", "from", g.from)?;
     let to = ck.finite("grid", "to", g.to)?;
-    let points = ck.int_at_least("grid", "points", g.points, 2, 200)?;
+    let points = ck.int_in("grid", "points", g.points, 2, MAX_POINTS, 200)?;
     if let (Some(a), Some(b)) = (from, to) {
         if a >= b {
             return Err(ck.fail(
@@ -242,7 +288,7 @@ pub fn resolve(
             format!("must be a positive finite number, got {min_ess}"),
         ));
     }
-    let min_chains = ck.int_at_least("gate", "min_chains", gate.min_chains, 1, 2)?;
+    let min_chains = ck.int_in("gate", "min_chains", gate.min_chains, 1, MAX_CHAINS, 2)?;
 
     // Data-dependent defaults. Without a summary (e.g. `template` checks) use unit scale.
     let (c, lo, hi) = match summary {
@@ -263,18 +309,39 @@ pub fn resolve(
         var_scale_shape: var_scale_shape.unwrap_or(0.2),
         var_scale_rate: var_scale_rate.unwrap_or(10.0 / (range * range)),
         dirichlet_delta: dirichlet_delta.unwrap_or(1.0),
+        delta_prior: p.delta_prior.unwrap_or(HyperChoice::Fixed),
+        // Malsiner-Walli, Frühwirth-Schnatter & Grün (2016): δ ~ Gamma(10, 10 K), prior mean 1/K.
+        delta_shape: delta_shape.unwrap_or(10.0),
+        delta_rate: delta_rate.unwrap_or(10.0 * components as f64),
         alpha_prior: p.alpha_prior.unwrap_or(HyperChoice::Gamma),
         alpha: alpha.unwrap_or(1.0),
         alpha_shape: alpha_shape.unwrap_or(1.0),
         alpha_rate: alpha_rate.unwrap_or(1.0),
     };
+    // Data-derived defaults must be usable numbers; the data checks keep the range within
+    // 1e±152 so they are, but a user override next to extreme data might not be.
+    for (key, v) in [
+        ("centre", prior.centre),
+        ("centre_sd", prior.centre_sd),
+        ("var_scale", prior.var_scale),
+        ("var_scale_rate", prior.var_scale_rate),
+    ] {
+        let ok = v.is_finite() && (key == "centre" || v > 0.0);
+        if !ok {
+            return Err(ck.fail(
+                "prior",
+                key,
+                format!("works out as {v} for data spanning {lo} to {hi}; set it explicitly"),
+            ));
+        }
+    }
     let pad = 0.1 * range;
     // Round default ends outward to three significant digits of the range, so the grid
     // reads as plain numbers (59.2 rather than 59.220000000000006).
     let step = 10f64.powf((range.log10()).floor() - 2.0);
     let grid_from = from.unwrap_or(((lo - pad) / step).floor() * step);
     let grid_to = to.unwrap_or(((hi + pad) / step).ceil() * step);
-    if grid_from >= grid_to {
+    if !(grid_from.is_finite() && grid_to.is_finite()) || grid_from >= grid_to {
         return Err(ck.fail(
             "grid",
             if from.is_some() { "from" } else { "to" },
@@ -297,6 +364,7 @@ pub fn resolve(
         draws,
         thin,
         seed,
+        label_moves: s.label_moves.unwrap_or(true),
         grid_from,
         grid_to,
         grid_points: points,
@@ -340,6 +408,7 @@ impl RunConfig {
         let gamma_b = p.var_scale_prior == HyperChoice::Gamma;
         let dir = self.weights == WeightsKind::Dirichlet;
         let gamma_a = p.alpha_prior == HyperChoice::Gamma;
+        let gamma_d = p.delta_prior == HyperChoice::Gamma;
         RawConfig {
             data: Some(DataSection {
                 file: Some(self.data_file_text.clone()),
@@ -361,7 +430,10 @@ impl RunConfig {
                 var_scale: (!gamma_b).then_some(p.var_scale),
                 var_scale_shape: gamma_b.then_some(p.var_scale_shape),
                 var_scale_rate: gamma_b.then_some(p.var_scale_rate),
-                dirichlet_delta: dir.then_some(p.dirichlet_delta),
+                dirichlet_delta: (dir && !gamma_d).then_some(p.dirichlet_delta),
+                delta_prior: dir.then_some(p.delta_prior),
+                delta_shape: (dir && gamma_d).then_some(p.delta_shape),
+                delta_rate: (dir && gamma_d).then_some(p.delta_rate),
                 alpha_prior: (!dir).then_some(p.alpha_prior),
                 alpha: (!dir && !gamma_a).then_some(p.alpha),
                 alpha_shape: (!dir && gamma_a).then_some(p.alpha_shape),
@@ -373,6 +445,7 @@ impl RunConfig {
                 draws: Some(self.draws as i64),
                 thin: Some(self.thin as i64),
                 seed: Some(self.seed as i64),
+                label_moves: (!dir).then_some(self.label_moves),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

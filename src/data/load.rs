@@ -53,6 +53,19 @@ pub fn load_column_from_reader<R: Read>(
                 }
             ))
         })?;
+    let same: Vec<String> = headers
+        .iter()
+        .enumerate()
+        .filter(|(_, h)| h.trim() == column)
+        .map(|(i, _)| (i + 1).to_string())
+        .collect();
+    if same.len() > 1 {
+        return Err(Error::input(format!(
+            "{origin}: the header names column \"{column}\" {} times (columns {}); rename all but one",
+            same.len(),
+            same.join(", ")
+        )));
+    }
     let mut values = Vec::new();
     let mut dropped = 0;
     let mut record = csv::StringRecord::new();
@@ -164,5 +177,9 @@ mod tests {
         let s = load("id,x\n1,\n2,3\n", MissingPolicy::Drop).unwrap();
         assert_eq!((s.values.clone(), s.dropped), (vec![3.0], 1));
         assert!(load("id,x\n1,\n2,3\n", MissingPolicy::Error).is_err());
+        let e = load("x,y,x\n1,2,3\n", MissingPolicy::Error)
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("columns 1, 3"), "{e}");
     }
 }

@@ -2,13 +2,24 @@
 //! in which the sampler works so that results do not depend on the data's units.
 //!
 //! Mean and spread are computed without overflow for any finite input: the mean by a
-//! running update and the spread after dividing by the largest deviation, so offsets near
-//! 1e300 or spreads near 1e-300 are handled; a spread that is zero in floating point is
-//! refused.
+//! running update and the spread after dividing by the largest deviation. Samples whose
+//! squares would leave double precision are refused with a message: a range above
+//! [`MAX_RANGE`], a standard deviation below [`MIN_SD`], or a spread that is only rounding
+//! error of the values' magnitude. Offsets such as 1e150 with a usable spread are fine.
 
 use serde::Serialize;
 
 use crate::error::{Error, Result};
+use crate::numfmt::fmt_f64;
+
+/// Largest accepted range of the sample: its square (used by the default priors) and the
+/// squares of standardised deviations stay far from overflow.
+pub const MAX_RANGE: f64 = 1e152;
+/// Smallest accepted standard deviation: its square stays a normal double (no underflow).
+pub const MIN_SD: f64 = 1e-152;
+/// The sd must span at least this many units in the last place of the largest value, or
+/// the observations are mostly rounding error.
+const MIN_ULPS: f64 = 100.0;
 
 /// Centre, spread and range of a sample.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -51,20 +62,34 @@ impl DataSummary {
         let mean = mean.clamp(min, max);
         if min == max {
             return Err(Error::input(format!(
-                "{origin}: all {n} observations equal {min}; a density cannot be estimated from a constant sample"
+                "{origin}: all {n} observations equal {}; a density cannot be estimated from a constant sample",
+                fmt_f64(min)
+            )));
+        }
+        let range = max - min;
+        if !(range.is_finite() && range <= MAX_RANGE) {
+            return Err(Error::input(format!(
+                "{origin}: the observations span from {} to {}; ranges above {MAX_RANGE:e} are refused \
+                 because squared deviations would overflow double precision; rescale the data",
+                fmt_f64(min),
+                fmt_f64(max)
             )));
         }
         let big = (max - mean).abs().max((mean - min).abs());
-        if !big.is_finite() {
-            return Err(Error::input(format!(
-                "{origin}: the observations span from {min} to {max}, a range too wide for double precision"
-            )));
-        }
         let ss: f64 = x.iter().map(|&v| ((v - mean) / big).powi(2)).sum();
         let sd = big * (ss / (n - 1) as f64).sqrt();
-        if !(sd.is_finite() && sd > 0.0) || (max - min) / sd.max(f64::MIN_POSITIVE) > 1e12 {
+        if !(sd.is_finite() && sd >= MIN_SD) {
             return Err(Error::input(format!(
-                "{origin}: the spread of the observations (sd {sd}) cannot be represented reliably"
+                "{origin}: the standard deviation of the observations is {sd:e}; spreads below {MIN_SD:e} \
+                 are refused because squared deviations would underflow double precision; rescale the data"
+            )));
+        }
+        let magnitude = min.abs().max(max.abs());
+        if sd < MIN_ULPS * f64::EPSILON * magnitude {
+            return Err(Error::input(format!(
+                "{origin}: the observations (around {}) differ only in their last few digits \
+                 (sd {sd:e}), too little for double precision; subtract a common offset from the data first",
+                fmt_f64(magnitude)
             )));
         }
         Ok(DataSummary {
@@ -132,5 +157,28 @@ mod tests {
         assert!(DataSummary::of(&x, "t").is_err());
         assert!(DataSummary::of(&[3.0, 3.0, 3.0], "t").is_err());
         assert!(DataSummary::of(&[3.0], "t").is_err());
+    }
+
+    #[test]
+    fn refuses_spreads_that_leave_double_precision() {
+        // Range 1e160: its square overflows.
+        let e = DataSummary::of(&[0.0, 1e160, 5e159], "t")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("span from 0 to 1e160"), "{e}");
+        // sd ~ 1e-160: its square underflows.
+        let e = DataSummary::of(&[0.0, 1e-160, 2e-160], "t")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("standard deviation"), "{e}");
+        // Values that differ in the last bit only.
+        let e = DataSummary::of(&[1.0, 1.0 + f64::EPSILON, 1.0], "t")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("last few digits"), "{e}");
+        // 1e150 offset with a spread of 1e140 is accepted and standardises to O(1).
+        let x: Vec<f64> = (0..50).map(|i| 1e150 + (i as f64) * 1e140).collect();
+        let s = Standardised::new(&x, "t").unwrap();
+        assert!(s.z.iter().all(|v| v.abs() < 2.0));
     }
 }

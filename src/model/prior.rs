@@ -15,7 +15,8 @@ pub enum VarScale {
     },
 }
 
-/// The weight-prior concentration: δ (Dirichlet) or α (stick-breaking).
+/// The weight-prior concentration: δ (Dirichlet) or α (stick-breaking), fixed or with a
+/// Gamma(shape, rate) prior.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 pub enum Concentration {
     Fixed(f64),
@@ -39,6 +40,8 @@ pub struct Prior {
     pub var_shape: f64,
     pub var_scale: VarScale,
     pub concentration: Concentration,
+    /// Whether the sweep runs the label-switching moves (stick-breaking weights only).
+    pub label_moves: bool,
 }
 
 impl Prior {
@@ -55,7 +58,13 @@ impl Prior {
             },
         };
         let concentration = match cfg.weights {
-            WeightsKind::Dirichlet => Concentration::Fixed(p.dirichlet_delta),
+            WeightsKind::Dirichlet => match p.delta_prior {
+                HyperChoice::Fixed => Concentration::Fixed(p.dirichlet_delta),
+                HyperChoice::Gamma => Concentration::Gamma {
+                    shape: p.delta_shape,
+                    rate: p.delta_rate,
+                },
+            },
             WeightsKind::StickBreaking => match p.alpha_prior {
                 HyperChoice::Fixed => Concentration::Fixed(p.alpha),
                 HyperChoice::Gamma => Concentration::Gamma {
@@ -74,6 +83,7 @@ impl Prior {
             var_shape: p.var_shape,
             var_scale,
             concentration,
+            label_moves: cfg.label_moves,
         }
     }
 

@@ -45,8 +45,17 @@ pub struct RunOutcome {
     pub interrupted: bool,
 }
 
+/// How one chain's thread ended: its stop, draws written and seconds spent.
+type ChainResult = Result<(ChainStop, u64, f64)>;
+
 /// Prepares the directory for a fresh run.
 fn claim_directory(dir: &Path, force: bool) -> Result<()> {
+    if dir.exists() && !dir.is_dir() {
+        return Err(Error::input(format!(
+            "--out {} exists and is not a directory; choose another --out",
+            dir.display()
+        )));
+    }
     if dir.exists() {
         let non_empty = std::fs::read_dir(dir)
             .map_err(|e| Error::io(dir, e))?
@@ -86,6 +95,11 @@ pub fn execute(
 ) -> Result<RunOutcome> {
     let cfg = &prep.config;
     let layout = RunLayout::new(dir);
+    if opts.stop.load(Ordering::SeqCst) {
+        return Err(Error::Interrupted(
+            "before sampling started; nothing was written".into(),
+        ));
+    }
     let plan = ChainPlan {
         warmup: cfg.warmup as u64,
         draws: cfg.draws as u64,
@@ -158,8 +172,7 @@ pub fn execute(
     .unwrap_or_else(|_| ProgressStyle::default_bar());
 
     let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
-    let results: Vec<Mutex<Option<Result<(ChainStop, u64, f64)>>>> =
-        jobs.iter().map(|_| Mutex::new(None)).collect();
+    let results: Vec<Mutex<Option<ChainResult>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
     let next = AtomicUsize::new(0);
     let workers = opts.threads.max(1).min(jobs.len().max(1));
     let chains = manifest.chains.clone();
@@ -258,16 +271,23 @@ fn run_one(
     let key = StreamKey::new(prep.config.seed, id);
     let draws_path = layout.chain_draws(id);
     let state_path = layout.chain_state(id);
+    let fresh = || -> Result<(ChainWriter, Checkpoint)> {
+        let w = ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
+        let start = Checkpoint {
+            sweeps_done: 0,
+            state: initial_state(x, &prep.prior, &key),
+            pending_occupied: None,
+        };
+        Ok((w, start))
+    };
     let (mut writer, start) = match mode {
-        Mode::Fresh { .. } => {
-            let w =
-                ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
-            let start = Checkpoint {
-                sweeps_done: 0,
-                state: initial_state(x, &prep.prior, &key),
-                pending_occupied: None,
-            };
-            (w, start)
+        Mode::Fresh { .. } => fresh()?,
+        Mode::Resume if !state_path.exists() => {
+            // The process died before this chain's first checkpoint: start it afresh.
+            if draws_path.exists() {
+                std::fs::remove_file(&draws_path).map_err(|e| Error::io(&draws_path, e))?;
+            }
+            fresh()?
         }
         Mode::Resume => {
             let stored = read_checkpoint(&state_path)?;

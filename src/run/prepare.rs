@@ -9,7 +9,7 @@ use sha2::{Digest, Sha256};
 use crate::config::{parse_config_str, resolve, RunConfig};
 use crate::data::{load_column, load_column_from_reader, Standardised};
 use crate::error::{Error, Result};
-use crate::model::Prior;
+use crate::model::{Concentration, Prior, VarScale};
 use crate::store::DataRecord;
 
 /// Everything a run needs before sampling starts.
@@ -84,6 +84,7 @@ impl Prepared {
         // written relative to the original config's folder.
         config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
+        check_standard_prior(&prior, origin)?;
         let s = data.summary;
         let record = DataRecord {
             file: abs,
@@ -103,4 +104,40 @@ impl Prepared {
             record,
         })
     }
+}
+
+/// The prior in standard units must be made of usable numbers: a user's value that is
+/// fine in data units can overflow or vanish once divided by a tiny or huge data scale.
+fn check_standard_prior(prior: &Prior, origin: &str) -> Result<()> {
+    let mut values = vec![
+        ("centre", prior.centre, false),
+        ("centre_sd", prior.centre_sd, true),
+        ("centre_shrink", prior.centre_shrink, true),
+        ("var_shape", prior.var_shape, true),
+    ];
+    match prior.var_scale {
+        VarScale::Fixed(b) => values.push(("var_scale", b, true)),
+        VarScale::Gamma { shape, rate } => {
+            values.push(("var_scale_shape", shape, true));
+            values.push(("var_scale_rate", rate, true));
+        }
+    }
+    match prior.concentration {
+        Concentration::Fixed(c) => values.push(("dirichlet_delta or alpha", c, true)),
+        Concentration::Gamma { shape, rate } => {
+            values.push(("alpha_shape", shape, true));
+            values.push(("alpha_rate", rate, true));
+        }
+    }
+    for (key, v, positive) in values {
+        let ok = v.is_finite() && (!positive || v >= f64::MIN_POSITIVE);
+        if !ok {
+            return Err(Error::input(format!(
+                "{origin}: [prior] {key} cannot be used with this data: in the sampler's standard \
+                 units (data centred and divided by its sd) it becomes {v:e}; choose a value on the \
+                 scale of the data"
+            )));
+        }
+    }
+    Ok(())
 }

@@ -1,5 +1,5 @@
-//! The Gibbs sampler: one sweep updates allocations, then weights, then component
-//! parameters, then hyperparameters; [`chain::run_chain`] strings sweeps into a chain.
+//! The Gibbs sampler: one sweep updates allocations, then (stick-breaking weights) runs the
+//! label-switching moves, then updates weights, component parameters and hyperparameters; [`chain::run_chain`] strings sweeps into a chain.
 //!
 //! Every random number comes from a stream keyed by (seed, chain, sweep, block), see
 //! [`rng`], so a chain is a function of the seed and its id alone, and a stored state
@@ -11,9 +11,11 @@ pub mod chain;
 // tests can rebuild a sweep with one conditional deliberately wrong.
 #[doc(hidden)]
 pub mod components;
+pub mod concentration;
 #[doc(hidden)]
 pub mod hyper;
 mod init;
+pub mod label_moves;
 pub mod rng;
 mod sweep;
 #[doc(hidden)]
@@ -22,4 +24,5 @@ pub mod weights;
 pub use allocate::{ComponentTable, SuffStats};
 pub use chain::{run_chain, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};
 pub use init::initial_state;
-pub use sweep::{sweep, SweepOutcome};
+pub use label_moves::{MoveRatios, MoveTally};
+pub use sweep::{sweep, sweep_with, SweepOutcome};

@@ -15,6 +15,9 @@ pub fn splitmix64(mut z: u64) -> u64 {
 
 /// Block index reserved for the per-sweep stream (weights, components, hyperparameters).
 const SWEEP_STREAM: u64 = u64::MAX;
+/// Block index reserved for the label-switching moves of a sweep (see `label_moves`), so
+/// switching them on or off leaves every other stream as it was.
+const LABEL_STREAM: u64 = u64::MAX - 1;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
 
@@ -53,6 +56,11 @@ impl StreamKey {
     /// Generator for everything in sweep `sweep` after the allocations.
     pub fn sweep_rng(&self, sweep: u64) -> ChaCha8Rng {
         self.rng(sweep, SWEEP_STREAM)
+    }
+
+    /// Generator for the label-switching moves in sweep `sweep`.
+    pub fn label_rng(&self, sweep: u64) -> ChaCha8Rng {
+        self.rng(sweep, LABEL_STREAM)
     }
 
     /// Generator for the chain's starting point.

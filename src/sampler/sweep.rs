@@ -1,10 +1,15 @@
-//! One Gibbs sweep: allocations, weights, component parameters, hyperparameters.
+//! One sweep: allocations, label-switching moves (stick-breaking weights), the
+//! concentration given the counts (weights integrated out), weights, component
+//! parameters, hyperparameters.
 
 use super::allocate::{allocate, ComponentTable};
 use super::components::update_components;
+use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
+use super::label_moves::{label_moves, MoveRatios, MoveTally, EXACT};
 use super::rng::StreamKey;
 use super::weights::update_weights;
+use crate::config::WeightsKind;
 use crate::model::{Prior, State};
 
 /// What a sweep reports besides the new state.
@@ -14,6 +19,8 @@ pub struct SweepOutcome {
     pub loglik_before: f64,
     /// Components holding at least one observation after this sweep's allocation.
     pub occupied: usize,
+    /// Proposals and acceptances of the label-switching moves (zero when they are off).
+    pub moves: MoveTally,
 }
 
 /// Advances `state` by one sweep numbered `index` (from 1).
@@ -24,10 +31,28 @@ pub fn sweep(
     key: &StreamKey,
     index: u64,
 ) -> SweepOutcome {
+    sweep_with(x, prior, state, key, index, &EXACT)
+}
+
+/// [`sweep`] with the label moves accepted by `ratios`; only the joint-distribution test
+/// passes anything but the exact ratios.
+pub fn sweep_with(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    ratios: &MoveRatios,
+) -> SweepOutcome {
     pin_fixed(prior, state);
     let table = ComponentTable::new(state);
-    let alloc = allocate(x, &table, key, index);
+    let mut alloc = allocate(x, &table, key, index);
+    let mut moves = MoveTally::default();
+    if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
+        moves = label_moves(&mut alloc.stats, state, ratios, &mut key.label_rng(index));
+    }
     let mut rng = key.sweep_rng(index);
+    update_concentration_given_counts(prior, &alloc.stats.n, state, &mut rng);
     update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
     update_components(prior, &alloc.stats, state, &mut rng);
     update_var_scale(prior, state, &mut rng);
@@ -35,5 +60,6 @@ pub fn sweep(
     SweepOutcome {
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
+        moves,
     }
 }

@@ -17,5 +17,15 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
     f.write_all(bytes).map_err(|e| Error::io(&tmp, e))?;
     f.sync_all().map_err(|e| Error::io(&tmp, e))?;
     drop(f);
-    std::fs::rename(&tmp, path).map_err(|e| Error::io(path, e))
+    std::fs::rename(&tmp, path).map_err(|e| {
+        let _ = std::fs::remove_file(&tmp);
+        Error::io(path, e)
+    })?;
+    // Make the rename itself durable where the platform allows syncing a directory.
+    if let Some(dir) = path.parent().filter(|d| !d.as_os_str().is_empty()) {
+        if let Ok(d) = std::fs::File::open(dir) {
+            let _ = d.sync_all();
+        }
+    }
+    Ok(())
 }

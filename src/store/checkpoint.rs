@@ -22,3 +22,14 @@ pub fn read_checkpoint(path: &Path) -> Result<StoredCheckpoint> {
     serde_json::from_str(&text)
         .map_err(|e| Error::input(format!("{}: unreadable checkpoint: {e}", path.display())))
 }
+
+/// Whether every number in the checkpoint is finite (JSON cannot hold the others, and a
+/// state holding them could not continue the chain).
+pub fn is_finite(c: &Checkpoint) -> bool {
+    let s = &c.state;
+    [&s.log_w, &s.log_v, &s.log_1mv, &s.mu, &s.var]
+        .iter()
+        .all(|v| v.iter().all(|x| x.is_finite()))
+        && s.concentration.is_finite()
+        && s.var_scale.is_finite()
+}

@@ -36,6 +36,17 @@ pub fn header(k: usize) -> String {
     h
 }
 
+/// Seconds between checkpoints: 2, or `MIXBAND_CHECKPOINT_SECS` when set to a positive
+/// number (tests use short intervals). Checkpoint timing never changes the draws.
+fn checkpoint_interval() -> Duration {
+    std::env::var("MIXBAND_CHECKPOINT_SECS")
+        .ok()
+        .and_then(|v| v.trim().parse::<f64>().ok())
+        .filter(|v| v.is_finite() && *v > 0.0 && *v < 1e6)
+        .map(Duration::from_secs_f64)
+        .unwrap_or(Duration::from_secs(2))
+}
+
 /// Writes one chain's table and its checkpoints; a [`DrawSink`] for the sampler.
 pub struct ChainWriter {
     chain: u64,
@@ -129,7 +140,7 @@ impl ChainWriter {
             draws_written: draws,
             units,
             last_checkpoint: Instant::now(),
-            every: Duration::from_secs(2),
+            every: checkpoint_interval(),
             progress: None,
             line: String::new(),
         }
@@ -200,7 +211,18 @@ impl DrawSink for ChainWriter {
         }
         self.last_checkpoint = Instant::now();
         self.file.flush().map_err(|e| Error::io(&self.path, e))?;
+        // The rows a checkpoint counts must be on disk before the checkpoint is.
+        self.file
+            .get_ref()
+            .sync_data()
+            .map_err(|e| Error::io(&self.path, e))?;
         let c = cp();
+        if !super::checkpoint::is_finite(&c) {
+            return Err(Error::internal(format!(
+                "chain {}: non-finite sampler state after sweep {}; no checkpoint written",
+                self.chain, c.sweeps_done
+            )));
+        }
         if let Some(bar) = &self.progress {
             bar.set_position(c.sweeps_done);
         }
@@ -251,11 +273,14 @@ impl RunDraws {
 
 /// Reads a chain table, ignoring an unterminated last row.
 pub fn read_chain(path: &Path, chain: u64) -> Result<ChainDraws> {
-    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, e))?;
+    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
+    // A crash can cut a multi-byte character in half; only complete rows count anyway.
+    let text = String::from_utf8_lossy(&bytes);
     parse_chain(&text, &path.display().to_string(), chain)
 }
 
-fn parse_chain(text: &str, origin: &str, chain: u64) -> Result<ChainDraws> {
+/// Parses the text of a chain table (see [`read_chain`]); `origin` names it in messages.
+pub fn parse_chain(text: &str, origin: &str, chain: u64) -> Result<ChainDraws> {
     let complete = match text.rfind('\n') {
         Some(i) => &text[..=i],
         None => "",

@@ -17,6 +17,8 @@ mod manifest;
 
 pub use atomic::write_atomic;
 pub use checkpoint::{read_checkpoint, StoredCheckpoint};
-pub use draws::{read_chain, read_run_draws, ChainDraws, ChainWriter, DrawRow, RunDraws, Units};
+pub use draws::{
+    parse_chain, read_chain, read_run_draws, ChainDraws, ChainWriter, DrawRow, RunDraws, Units,
+};
 pub use layout::RunLayout;
 pub use manifest::{ChainRecord, DataRecord, Manifest, RunStatus};

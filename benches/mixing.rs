@@ -1,0 +1,308 @@
+//! Mixing benchmark (issue 8): effective draws of the density, not sweeps per second.
+//!
+//! For benchmark densities of Marron & Wand (1992, "Exact mean integrated squared error",
+//! Ann. Statist. 20:712–736, Table 1; parameters written from memory) draws n = 500
+//! observations, fits each weight prior with 4 chains × 2000 kept draws after 2000 warm-up
+//! through the ordinary config path (every other setting at its default), and prints, over
+//! the default 200-point grid, the lowest and median bulk-ESS per kept draw of the density
+//! and the largest R-hat, plus the convergence-gate quantities (loglik, occupied,
+//! concentration; max R-hat ≤ 1.01, min bulk-ESS ≥ 400) and bulk-ESS per CPU second.
+//! Then the shipped demo config is run as it stands and checked against the gate.
+//!
+//! `cargo bench --bench mixing`. Environment: MIXING_WARMUP, MIXING_DRAWS (per chain),
+//! MIXING_ONLY (substring of a row label) to run a part.
+
+use std::path::Path;
+use std::time::Instant;
+
+use mixband::diagnostics::scalar_diagnostics;
+use mixband::run::Prepared;
+use mixband::sampler::allocate::{loglik, ComponentTable};
+use mixband::sampler::rng::StreamKey;
+use mixband::sampler::{initial_state, sweep};
+use mixband::summary::linspace;
+use rand::SeedableRng;
+use rand_chacha::ChaCha8Rng;
+
+/// A normal mixture: (weight, mean, sd) per component.
+struct Density {
+    name: &'static str,
+    parts: Vec<(f64, f64, f64)>,
+}
+
+fn densities() -> Vec<Density> {
+    let comb = (0..6)
+        .map(|l| {
+            let l = l as f64;
+            (
+                2f64.powf(5.0 - l) / 63.0,
+                (65.0 - 96.0 * 0.5f64.powf(l)) / 21.0,
+                (32.0 / 63.0) / 2f64.powf(l),
+            )
+        })
+        .collect();
+    vec![
+        Density {
+            name: "MW2 skewed",
+            parts: vec![
+                (0.2, 0.0, 1.0),
+                (0.2, 0.5, 2.0 / 3.0),
+                (0.6, 13.0 / 12.0, 5.0 / 9.0),
+            ],
+        },
+        Density {
+            name: "MW6 bimodal",
+            parts: vec![(0.5, -1.0, 2.0 / 3.0), (0.5, 1.0, 2.0 / 3.0)],
+        },
+        Density {
+            name: "MW8 asym bimodal",
+            parts: vec![(0.75, 0.0, 1.0), (0.25, 1.5, 1.0 / 3.0)],
+        },
+        Density {
+            name: "MW14 smooth comb",
+            parts: comb,
+        },
+    ]
+}
+
+fn sample_csv(d: &Density, n: usize, seed: u64) -> Vec<u8> {
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    let mut out = String::from("value\n");
+    for _ in 0..n {
+        let u: f64 = rand::Rng::random(&mut rng);
+        let mut acc = 0.0;
+        let mut pick = d.parts.len() - 1;
+        for (j, p) in d.parts.iter().enumerate() {
+            acc += p.0;
+            if u < acc {
+                pick = j;
+                break;
+            }
+        }
+        let (_, m, s) = d.parts[pick];
+        out.push_str(&format!("{}\n", mixband::dist::normal(m, s, &mut rng)));
+    }
+    out.into_bytes()
+}
+
+/// One weight-prior setting, as config lines.
+struct Variant {
+    label: &'static str,
+    model: &'static str,
+    prior: &'static str,
+    sampler: &'static str,
+}
+
+fn variants() -> Vec<Variant> {
+    vec![
+        Variant {
+            label: "dirichlet d=1 K=10",
+            model: "weights = \"dirichlet\"",
+            prior: "",
+            sampler: "",
+        },
+        Variant {
+            label: "dirichlet d~G(10,10K) K=10",
+            model: "weights = \"dirichlet\"",
+            prior: "delta_prior = \"gamma\"",
+            sampler: "",
+        },
+        Variant {
+            label: "stick K=25 no moves",
+            model: "weights = \"stick-breaking\"",
+            prior: "",
+            sampler: "label_moves = false",
+        },
+        Variant {
+            label: "stick K=25 moves",
+            model: "weights = \"stick-breaking\"",
+            prior: "",
+            sampler: "label_moves = true",
+        },
+    ]
+}
+
+/// Everything measured on one run.
+struct Figures {
+    min_ess: f64,
+    median_ess: f64,
+    max_rhat: f64,
+    gate_rhat: f64,
+    gate_ess: f64,
+    worst: String,
+    accept_labels: f64,
+    accept_adjacent: f64,
+    seconds: f64,
+    draws: usize,
+}
+
+fn run(prep: &Prepared) -> Figures {
+    let cfg = &prep.config;
+    let grid = linspace(cfg.grid_from, cfg.grid_to, cfg.grid_points);
+    let (c, s) = (prep.data.centre, prep.data.scale);
+    let x = &prep.data.z;
+    let total = (cfg.warmup + cfg.draws * cfg.thin) as u64;
+    let g = grid.len();
+    let mut dens: Vec<Vec<Vec<f64>>> = vec![Vec::new(); g];
+    let mut scalars: Vec<[Vec<f64>; 3]> = Vec::new();
+    let (mut lp, mut la, mut ap, mut aa) = (0u64, 0u64, 0u64, 0u64);
+    let mut seconds = 0.0;
+    for chain in 1..=cfg.chains as u64 {
+        let key = StreamKey::new(cfg.seed, chain);
+        let mut state = initial_state(x, &prep.prior, &key);
+        let mut chain_d: Vec<Vec<f64>> = vec![Vec::with_capacity(cfg.draws); g];
+        let mut sc: [Vec<f64>; 3] = Default::default();
+        let mut pending: Option<f64> = None;
+        let t0 = Instant::now();
+        for t in 1..=total {
+            let out = sweep(x, &prep.prior, &mut state, &key, t);
+            if let Some(occ) = pending.take() {
+                sc[0].push(out.loglik_before);
+                sc[1].push(occ);
+            }
+            lp += out.moves.labels_proposed as u64;
+            la += out.moves.labels_accepted as u64;
+            ap += out.moves.adjacent_proposed as u64;
+            aa += out.moves.adjacent_accepted as u64;
+            if t > cfg.warmup as u64 && (t - cfg.warmup as u64) % cfg.thin as u64 == 0 {
+                pending = Some(out.occupied as f64);
+                sc[2].push(state.concentration);
+                for (gi, &xv) in grid.iter().enumerate() {
+                    chain_d[gi].push(state.density((xv - c) / s) / s);
+                }
+            }
+        }
+        if let Some(occ) = pending {
+            sc[0].push(loglik(x, &ComponentTable::new(&state)));
+            sc[1].push(occ);
+        }
+        seconds += t0.elapsed().as_secs_f64();
+        for (gi, d) in chain_d.into_iter().enumerate() {
+            dens[gi].push(d);
+        }
+        scalars.push(sc);
+    }
+    let n_kept = (cfg.chains * cfg.draws) as f64;
+    let mut ess = Vec::with_capacity(g);
+    let mut max_rhat: f64 = 0.0;
+    for chains in &dens {
+        let refs: Vec<&[f64]> = chains.iter().map(Vec::as_slice).collect();
+        let d = scalar_diagnostics(&refs).expect("density diagnostics");
+        ess.push(d.ess_bulk);
+        max_rhat = max_rhat.max(d.rhat);
+    }
+    let min_ess = ess.iter().copied().fold(f64::INFINITY, f64::min);
+    let (mut gate_rhat, mut gate_ess) = (max_rhat, min_ess);
+    let at = ess.iter().position(|&e| e == min_ess).unwrap_or(0);
+    // Where the lowest density ESS sits, as a quantile of the sample (0 = minimum, 1 = maximum).
+    let (lo, hi) = (prep.data.summary.min, prep.data.summary.max);
+    let mut worst = format!(
+        "density ESS {min_ess:.0} at x = {:.2} ({:+.2} of the data range)",
+        grid[at],
+        (grid[at] - lo) / (hi - lo)
+    );
+    for (i, name) in ["loglik", "occupied", "concentration"].iter().enumerate() {
+        let refs: Vec<&[f64]> = scalars.iter().map(|sc| sc[i].as_slice()).collect();
+        let d = scalar_diagnostics(&refs).expect("scalar diagnostics");
+        gate_rhat = gate_rhat.max(d.rhat);
+        if d.ess_bulk < gate_ess {
+            gate_ess = d.ess_bulk;
+            worst = format!("{name} ESS {:.0}", d.ess_bulk);
+        }
+    }
+    let mut sorted = ess.clone();
+    sorted.sort_by(f64::total_cmp);
+    let rate = |a: u64, p: u64| {
+        if p == 0 {
+            f64::NAN
+        } else {
+            a as f64 / p as f64
+        }
+    };
+    Figures {
+        min_ess: min_ess / n_kept,
+        median_ess: sorted[g / 2] / n_kept,
+        max_rhat,
+        gate_rhat,
+        gate_ess,
+        worst,
+        accept_labels: rate(la, lp),
+        accept_adjacent: rate(aa, ap),
+        seconds,
+        draws: n_kept as usize,
+    }
+}
+
+fn env_usize(name: &str, default: usize) -> usize {
+    std::env::var(name)
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(default)
+}
+
+fn print_row(label: &str, f: &Figures) {
+    let pass = f.gate_rhat <= 1.01 && f.gate_ess >= 400.0;
+    println!(
+        "{label:<46} {:>7.3} {:>7.3} {:>7.3} {:>7.3} {:>7.0} {:>5} {:>6.2} {:>6.2} {:>7.1} {:>9.0}  {}",
+        f.min_ess,
+        f.median_ess,
+        f.max_rhat,
+        f.gate_rhat,
+        f.gate_ess,
+        if pass { "pass" } else { "FAIL" },
+        f.accept_labels,
+        f.accept_adjacent,
+        f.seconds,
+        f.min_ess * f.draws as f64 / f.seconds,
+        f.worst,
+    );
+}
+
+fn main() {
+    let warmup = env_usize("MIXING_WARMUP", 2000);
+    let draws = env_usize("MIXING_DRAWS", 2000);
+    let only = std::env::var("MIXING_ONLY").unwrap_or_default();
+    println!(
+        "mixing: n = 500, 4 chains x {draws} kept draws after {warmup} warm-up, 200-point grid"
+    );
+    println!(
+        "{:<46} {:>7} {:>7} {:>7} {:>7} {:>7} {:>5} {:>6} {:>6} {:>7} {:>9}  worst gate quantity",
+        "data / weights",
+        "minESS/",
+        "medESS/",
+        "maxRhat",
+        "gateRh",
+        "gateESS",
+        "gate",
+        "acc1",
+        "acc2",
+        "cpu s",
+        "minESS/s"
+    );
+    for (i, d) in densities().iter().enumerate() {
+        let csv = sample_csv(d, 500, 1000 + i as u64);
+        for v in variants() {
+            let label = format!("{} | {}", d.name, v.label);
+            if !label.contains(&only) {
+                continue;
+            }
+            let text = format!(
+                "[data]\nfile = \"bench.csv\"\ncolumn = \"value\"\n[model]\n{}\n[prior]\n{}\n[sampler]\nchains = 4\nwarmup = {warmup}\ndraws = {draws}\nseed = {}\n{}\n",
+                v.model,
+                v.prior,
+                77 + i,
+                v.sampler
+            );
+            let prep = Prepared::from_text(&text, "bench", Path::new("."), Some(&csv))
+                .expect("bench config");
+            print_row(&label, &run(&prep));
+        }
+    }
+    if "demo".contains(&only) || only.is_empty() {
+        let text = include_str!("../configs/demo.toml");
+        let data = include_bytes!("../demo-data/warbler-wings.csv");
+        let prep = Prepared::from_text(text, "configs/demo.toml", Path::new("."), Some(data))
+            .expect("demo config");
+        print_row("demo (shipped config, default run length)", &run(&prep));
+    }
+}
