@@ -34,6 +34,28 @@ pub fn trace_svg(inp: &RunInputs) -> Result<String> {
             })
             .collect();
         draw_legend(root, &legend, 66)?;
+        let longest = inp
+            .draws
+            .chains
+            .iter()
+            .map(|c| c.rows.len())
+            .max()
+            .unwrap_or(0);
+        if longest > style::TRACE_MAX_POINTS {
+            let step = longest.div_ceil(style::TRACE_MAX_POINTS);
+            let (w, _) = root.dim_in_pixel();
+            root.draw(&Text::new(
+                format!("every {step}th draw drawn"),
+                (w as i32 - 24, 66),
+                font(style::NOTE_SIZE, style::INK_SOFT).pos(
+                    plotters::style::text_anchor::Pos::new(
+                        plotters::style::text_anchor::HPos::Right,
+                        plotters::style::text_anchor::VPos::Center,
+                    ),
+                ),
+            ))
+            .map_err(plot_err)?;
+        }
         let body = root.margin(head as i32 - 4, 8, 14, 24);
         let panels = body.split_evenly((qs.len(), 1));
         let last = qs.len().saturating_sub(1);
