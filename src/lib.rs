@@ -15,10 +15,14 @@
 //! - [`store`]: the run directory (draws, checkpoints, manifest);
 //! - [`summary`]: densities on a grid and pointwise bands;
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
+//! - [`compare`]: PSIS-LOO and WAIC comparison of runs on the same data;
 //! - [`gate`]: the convergence gate on a run's label-invariant quantities;
-//! - [`run`]: the whole job; [`cli`]: the thin command line over it.
+//! - [`run`]: the whole job; [`cli`]: the thin command line over it;
+//! - [`bench`]: synthetic speed and memory workloads (`mixband bench`).
 
+pub mod bench;
 pub mod cli;
+pub mod compare;
 pub mod config;
 pub mod data;
 pub mod diagnostics;

@@ -17,7 +17,8 @@ fn sample_with(name: &str, config: &str, data: &[u8]) -> std::process::Output {
     s.write("c.toml", config);
     s.write("d.csv", data);
     let out = s.run(&["sample", "c.toml", "--out", "run", "--quiet"]);
-    if out.status.code() != Some(0) {
+    // Exit 3 (the convergence gate failed on these tiny runs) still writes a run directory.
+    if !matches!(out.status.code(), Some(0) | Some(3)) {
         assert!(
             !s.path("run").exists(),
             "run directory left behind: {}",

@@ -3,9 +3,10 @@
 use std::path::Path;
 
 use crate::config::resolve_check_levels;
+use crate::data::Transform;
 use crate::error::{Error, Result};
 use crate::gate::{assess, DiagnosticsReport, GateSpec};
-use crate::run::{write_bands, Prepared};
+use crate::run::{write_bands, write_summaries, Prepared};
 use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
 use crate::summary::{linspace, Bands, DensityDraws};
 
@@ -15,14 +16,30 @@ use crate::summary::{linspace, Bands, DensityDraws};
 pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<DiagnosticsReport> {
     let c = &prep.config;
     let manifest = Manifest::read(&layout.manifest())?;
-    let (draws, dens) = densities(layout, &manifest, c.grid_from, c.grid_to, c.grid_points)?;
+    let (draws, dens) = densities(
+        layout,
+        &manifest,
+        c.grid_from,
+        c.grid_to,
+        c.grid_points,
+        c.transform,
+    )?;
     let report = assess(
         &draws,
         &dens,
         &GateSpec::from_config(c, manifest.status == RunStatus::Complete),
     );
     report.write(layout)?;
-    write_bands(layout, &Bands::new(&dens, &c.levels), Some(report.passed))?;
+    let bands = Bands::new(&dens, &c.levels);
+    write_bands(layout, &bands, Some(report.passed))?;
+    write_summaries(
+        layout,
+        &draws,
+        &dens,
+        &bands,
+        c.transform,
+        Some(report.passed),
+    )?;
     Ok(report)
 }
 
@@ -32,6 +49,7 @@ fn densities(
     from: f64,
     to: f64,
     points: usize,
+    t: Transform,
 ) -> Result<(RunDraws, DensityDraws)> {
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
     if draws.min_len() == 0 {
@@ -41,7 +59,7 @@ fn densities(
         )));
     }
     let grid = linspace(from, to, points);
-    let dens = DensityDraws::new(&draws, &grid);
+    let dens = DensityDraws::new_on(&draws, &grid, t);
     Ok((draws, dens))
 }
 
@@ -52,13 +70,16 @@ fn write_for_grid(
     to: f64,
     points: usize,
     levels: &[f64],
+    t: Transform,
 ) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
-    let (_, dens) = densities(layout, &manifest, from, to, points)?;
+    let (draws, dens) = densities(layout, &manifest, from, to, points, t)?;
     let converged = DiagnosticsReport::read(&layout.diagnostics_json())
         .ok()
         .map(|r| r.passed);
-    write_bands(layout, &Bands::new(&dens, levels), converged)
+    let bands = Bands::new(&dens, levels);
+    write_bands(layout, &bands, converged)?;
+    write_summaries(layout, &draws, &dens, &bands, t, converged)
 }
 
 pub(super) fn bands(
@@ -86,11 +107,13 @@ pub(super) fn bands(
         )));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
-    write_for_grid(&layout, from, to, points, &levels)?;
+    write_for_grid(&layout, from, to, points, &levels, c.transform)?;
     println!(
-        "mixband: wrote {} and {}",
+        "mixband: wrote {}, {}, {} and {}",
         layout.bands_csv().display(),
-        layout.bands_json().display()
+        layout.bands_json().display(),
+        layout.cdf_csv().display(),
+        layout.summary_json().display()
     );
     Ok(0)
 }

@@ -2,8 +2,11 @@
 //! lives in its own file and does little beyond calling library functions and printing.
 
 mod bands;
+mod bench;
+mod compare;
 mod demo;
 mod diagnose;
+mod merge;
 mod plot;
 mod report;
 mod sample;
@@ -61,8 +64,21 @@ pub enum Command {
         /// Replace an earlier mixband run in --out.
         #[arg(long)]
         force: bool,
+        /// Run only these chains, comma separated (overrides `[sampler] chain_ids`); join
+        /// the parts with `mixband merge`.
+        #[arg(long, value_delimiter = ',')]
+        chains: Option<Vec<i64>>,
         #[command(flatten)]
         opts: SampleOpts,
+    },
+    /// Join runs that sampled different chains of one config into one run directory.
+    Merge {
+        /// Run directories to join (same config and data, disjoint chain ids).
+        #[arg(required = true, num_args = 2..)]
+        runs: Vec<PathBuf>,
+        /// Run directory to create.
+        #[arg(long)]
+        out: PathBuf,
     },
     /// Run the built-in demo (invented wing-length data) end to end.
     #[command(after_help = EXIT_CODES)]
@@ -121,6 +137,15 @@ pub enum Command {
         #[arg(long)]
         with_kde: bool,
     },
+    /// Compare runs on the same data by PSIS-LOO and WAIC (expected log predictive density).
+    Compare {
+        /// Two or more run directories.
+        #[arg(required = true, num_args = 2..)]
+        runs: Vec<PathBuf>,
+        /// Print JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
     /// Check a run's convergence: R-hat, ESS and MCSE of label-invariant quantities
     /// against the gate; exit 3 when it fails.
     #[command(after_help = EXIT_CODES)]
@@ -144,6 +169,8 @@ pub enum Command {
     },
     /// Print a commented starter config listing every key.
     Template,
+    /// Time the sampler on synthetic workloads (ns per pair, sweeps/s, memory, ESS/s).
+    Bench(bench::BenchArgs),
 }
 
 /// Runs the parsed command; returns the process exit code.
@@ -153,8 +180,10 @@ pub fn run(cli: Cli) -> Result<i32> {
             config,
             out,
             force,
+            chains,
             opts,
-        } => sample::sample(&config, &out, force, &opts),
+        } => sample::sample(&config, &out, force, chains.as_deref(), &opts),
+        Command::Merge { runs, out } => merge::merge(&runs, &out),
         Command::Demo { out, force, opts } => demo::demo(&out, force, &opts),
         Command::Resume { run, opts } => sample::resume(&run, None, &opts),
         Command::Extend { run, draws, opts } => sample::resume(&run, Some(draws), &opts),
@@ -167,6 +196,8 @@ pub fn run(cli: Cli) -> Result<i32> {
         } => bands::bands(&run, points, from, to, levels),
         Command::Plot { run, with_kde } => plot::plot(&run, with_kde),
         Command::Report { run, with_kde } => report::report(&run, with_kde),
+        Command::Compare { runs, json } => compare::compare(&runs, json),
+        Command::Bench(a) => bench::bench(&a),
         Command::Diagnose {
             run,
             json,

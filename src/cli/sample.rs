@@ -20,8 +20,19 @@ pub(super) fn exec_options(opts: &SampleOpts) -> ExecOptions<'static> {
     }
 }
 
-pub(super) fn sample(config: &Path, out: &Path, force: bool, opts: &SampleOpts) -> Result<i32> {
-    let prep = Prepared::from_config_file(config)?;
+pub(super) fn sample(
+    config: &Path,
+    out: &Path,
+    force: bool,
+    chain_ids: Option<&[i64]>,
+    opts: &SampleOpts,
+) -> Result<i32> {
+    let mut prep = Prepared::from_config_file(config)?;
+    if let Some(ids) = chain_ids {
+        let ids = crate::config::check_chain_ids(ids, prep.config.chains)
+            .map_err(|m| Error::input(format!("--chains {m}")))?;
+        prep.config.chain_ids = Some(ids);
+    }
     finish(&prep, out, Mode::Fresh { force }, opts, &[])
 }
 
@@ -39,7 +50,7 @@ pub(super) fn finish(
     let c = &prep.config;
     eprintln!(
         "mixband: {} chains x {} draws (warm-up {}, thin {}) of a {:?} mixture, K = {}, {:?} weights, on {} observations of \"{}\"{}",
-        c.chains,
+        c.chain_id_list().len(),
         c.draws,
         c.warmup,
         c.thin,

@@ -11,7 +11,7 @@ mod template;
 
 pub use raw::{HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
 pub use resolve::{
-    check_levels as resolve_check_levels, default_components, parse_config_file, parse_config_str,
-    resolve, PriorValues, RunConfig,
+    check_chain_ids, check_levels as resolve_check_levels, default_components, parse_config_file,
+    parse_config_str, resolve, PriorValues, RunConfig,
 };
 pub use template::TEMPLATE;

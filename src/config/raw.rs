@@ -60,6 +60,8 @@ pub struct DataSection {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub units: Option<String>,
     pub missing: Option<MissingPolicy>,
+    /// "none" or "log": the scale the mixture is fitted on (see src/data/transform.rs).
+    pub transform: Option<crate::data::Transform>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
@@ -110,6 +112,10 @@ pub struct SamplerSection {
     pub draws: Option<i64>,
     pub thin: Option<i64>,
     pub seed: Option<i64>,
+    /// Run only these chains (ids from 1 to `chains`), with the streams they have in the
+    /// full run; for splitting a run into jobs that `mixband merge` joins.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub chain_ids: Option<Vec<i64>>,
     /// Label-switching moves for stick-breaking weights (on by default).
     pub label_moves: Option<bool>,
 }

@@ -50,11 +50,14 @@ pub struct RunConfig {
     pub column: String,
     pub units: Option<String>,
     pub missing: MissingPolicy,
+    pub transform: crate::data::Transform,
     pub kernel: Kernel,
     pub weights: WeightsKind,
     pub components: usize,
     pub prior: PriorValues,
     pub chains: usize,
+    /// The chains this run samples: `[sampler] chain_ids`, or 1..=chains.
+    pub chain_ids: Option<Vec<u64>>,
     pub warmup: usize,
     pub draws: usize,
     pub thin: usize,
@@ -223,6 +226,12 @@ pub fn resolve(
             ),
         ));
     }
+    let chain_ids = match &s.chain_ids {
+        None => None,
+        Some(ids) => {
+            Some(check_chain_ids(ids, chains).map_err(|m| ck.fail("sampler", "chain_ids", m))?)
+        }
+    };
     let seed = match s.seed {
         Some(v) if v < 0 => {
             return Err(ck.fail(
@@ -355,11 +364,13 @@ pub fn resolve(
         column,
         units: data.units.clone(),
         missing: data.missing.unwrap_or(MissingPolicy::Error),
+        transform: data.transform.unwrap_or_default(),
         kernel,
         weights,
         components,
         prior,
         chains,
+        chain_ids,
         warmup,
         draws,
         thin,
@@ -373,6 +384,36 @@ pub fn resolve(
         min_ess,
         min_chains,
     })
+}
+
+/// Checks chain ids: at least one, each in 1..=chains, no repeats; returns them sorted.
+pub fn check_chain_ids(ids: &[i64], chains: usize) -> std::result::Result<Vec<u64>, String> {
+    if ids.is_empty() {
+        return Err("must list at least one chain id".into());
+    }
+    let mut out: Vec<u64> = Vec::with_capacity(ids.len());
+    for &id in ids {
+        if id < 1 || id as u64 > chains as u64 {
+            return Err(format!(
+                "must lie between 1 and [sampler] chains = {chains}, got {id}"
+            ));
+        }
+        if out.contains(&(id as u64)) {
+            return Err(format!("lists {id} twice"));
+        }
+        out.push(id as u64);
+    }
+    out.sort_unstable();
+    Ok(out)
+}
+
+impl RunConfig {
+    /// The ids of the chains this run samples.
+    pub fn chain_id_list(&self) -> Vec<u64> {
+        self.chain_ids
+            .clone()
+            .unwrap_or_else(|| (1..=self.chains as u64).collect())
+    }
 }
 
 /// Checks credible levels: each strictly inside (0, 1), no repeats.
@@ -415,6 +456,7 @@ impl RunConfig {
                 column: Some(self.column.clone()),
                 units: self.units.clone(),
                 missing: Some(self.missing),
+                transform: Some(self.transform),
             }),
             model: Some(ModelSection {
                 kernel: Some(self.kernel),
@@ -445,6 +487,10 @@ impl RunConfig {
                 draws: Some(self.draws as i64),
                 thin: Some(self.thin as i64),
                 seed: Some(self.seed as i64),
+                chain_ids: self
+                    .chain_ids
+                    .as_ref()
+                    .map(|v| v.iter().map(|&i| i as i64).collect()),
                 label_moves: (!dir).then_some(self.label_moves),
             }),
             grid: Some(GridSection {

@@ -10,6 +10,7 @@ file = "measurements.csv"     # CSV with a header row; relative to this file's f
 column = "value"              # header name of the numeric column
 # units = "mm"                # used in axis labels
 missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
+transform = "none"            # "none", or "log" for positive data: fit ln x, report the density of x
 
 [model]
 kernel = "location-scale"     # "location": one common sd (bandwidth) for all components
@@ -42,6 +43,7 @@ draws = 5000                  # kept draws per chain
 thin = 1                      # keep every thin-th sweep after warm-up
 # seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
 label_moves = true            # label-switching moves for stick-breaking weights (docs/model.md)
+# chain_ids = [1, 2]          # run only these chains, for jobs joined by `mixband merge`
 
 [grid]                        # where the density is evaluated
 # from = 0.0                  # default: data minimum - 10% of the range

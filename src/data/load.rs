@@ -14,6 +14,8 @@ pub struct Sample {
     pub values: Vec<f64>,
     /// Number of empty cells dropped under `missing = "drop"`.
     pub dropped: usize,
+    /// (file line, data row) of each value, for messages about individual values.
+    pub origins: Vec<(u64, usize)>,
 }
 
 /// Loads column `column` of the CSV file at `path`.
@@ -70,6 +72,7 @@ pub fn load_column_from_reader<R: Read>(
     let mut dropped = 0;
     let mut record = csv::StringRecord::new();
     let mut row = 0usize;
+    let mut origins = Vec::new();
     loop {
         match rdr.read_record(&mut record) {
             Ok(false) => break,
@@ -110,6 +113,7 @@ pub fn load_column_from_reader<R: Read>(
             )));
         }
         values.push(v);
+        origins.push((line, row));
     }
     if values.is_empty() {
         return Err(Error::input(format!(
@@ -121,7 +125,11 @@ pub fn load_column_from_reader<R: Read>(
             }
         )));
     }
-    Ok(Sample { values, dropped })
+    Ok(Sample {
+        values,
+        dropped,
+        origins,
+    })
 }
 
 fn truncate(s: &str) -> String {

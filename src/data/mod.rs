@@ -1,8 +1,10 @@
-//! Loading the sample: one numeric column of a CSV file, checked cell by cell, and its
-//! summary and standardisation.
+//! Loading the sample: one numeric column of a CSV file, checked cell by cell, the optional
+//! transform it is fitted on, and its summary and standardisation.
 
 mod load;
 mod standardise;
+mod transform;
 
 pub use load::{load_column, load_column_from_reader, Sample};
 pub use standardise::{DataSummary, Standardised};
+pub use transform::Transform;

@@ -1,7 +1,8 @@
 //! Sampling every chain of a run into its directory, in parallel threads.
 //!
 //! Chain i always uses the streams of (seed, i), so the draws do not depend on the number
-//! of threads or on which chains run beside it. A fresh run refuses to write into a
+//! of threads or on which chains run beside it (`[sampler] chain_ids` runs a subset).
+//! Threads go to chains first; spare threads split each chain's allocation by blocks. A fresh run refuses to write into a
 //! non-empty directory unless forced; resume and extend continue from the checkpoints.
 
 use std::path::Path;
@@ -14,7 +15,9 @@ use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
 use super::prepare::Prepared;
 use crate::error::{Error, Result};
 use crate::sampler::rng::StreamKey;
-use crate::sampler::{initial_state, run_chain, ChainPlan, ChainStop, Checkpoint};
+use crate::sampler::{
+    initial_state, run_chain_with, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
+};
 use crate::store::{
     read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
 };
@@ -121,7 +124,9 @@ pub fn execute(
                 seed: cfg.seed,
                 data: prep.record.clone(),
                 config: config_json,
-                chains: (1..=cfg.chains as u64)
+                chains: cfg
+                    .chain_id_list()
+                    .into_iter()
                     .map(|id| ChainRecord {
                         id,
                         sweeps_done: 0,
@@ -174,7 +179,9 @@ pub fn execute(
     let jobs: Vec<usize> = (0..manifest.chains.len()).collect();
     let results: Vec<Mutex<Option<ChainResult>>> = jobs.iter().map(|_| Mutex::new(None)).collect();
     let next = AtomicUsize::new(0);
-    let workers = opts.threads.max(1).min(jobs.len().max(1));
+    // Chains first; threads left over go to each chain's allocation blocks.
+    let (workers, per_chain) = thread_split(opts.threads, jobs.len());
+    let alloc = AllocOptions::fast(per_chain);
     let chains = manifest.chains.clone();
     std::thread::scope(|s| {
         for _ in 0..workers {
@@ -198,6 +205,7 @@ pub fn execute(
                     bar.clone(),
                     opts.stop,
                     mode,
+                    alloc,
                 )
                 .map(|(stop, written)| (stop, written, t0.elapsed().as_secs_f64()));
                 bar.finish_and_clear();
@@ -267,6 +275,7 @@ fn run_one(
     bar: ProgressBar,
     stop: &AtomicBool,
     mode: Mode,
+    alloc: AllocOptions,
 ) -> Result<(ChainStop, u64)> {
     let key = StreamKey::new(prep.config.seed, id);
     let draws_path = layout.chain_draws(id);
@@ -303,6 +312,6 @@ fn run_one(
     };
     bar.set_position(start.sweeps_done);
     writer = writer.with_progress(bar);
-    let stop_kind = run_chain(x, &prep.prior, &key, plan, start, &mut writer, stop)?;
+    let stop_kind = run_chain_with(x, &prep.prior, &key, plan, start, &mut writer, stop, alloc)?;
     Ok((stop_kind, writer.draws_written()))
 }

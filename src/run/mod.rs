@@ -2,9 +2,11 @@
 //! then summarise. The command line is a thin layer over these functions.
 
 mod execute;
+mod merge;
 mod outputs;
 mod prepare;
 
 pub use execute::{execute, ExecOptions, Mode, RunOutcome};
-pub use outputs::{write_bands, BandsFile};
+pub use merge::merge_runs;
+pub use outputs::{write_bands, write_summaries, BandsFile, SummaryFile, QUANTILE_PROBS};
 pub use prepare::{sha256_hex, Prepared};

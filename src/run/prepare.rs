@@ -7,7 +7,7 @@ use std::path::Path;
 use sha2::{Digest, Sha256};
 
 use crate::config::{parse_config_str, resolve, RunConfig};
-use crate::data::{load_column, load_column_from_reader, Standardised};
+use crate::data::{load_column, load_column_from_reader, DataSummary, Standardised, Transform};
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
 use crate::store::DataRecord;
@@ -76,9 +76,27 @@ impl Prepared {
                 (s, sha256_hex(&bytes), abs)
             }
         };
-        let data = Standardised::new(&sample.values, &pre.data_file.display().to_string())?;
+        let data_origin = pre.data_file.display().to_string();
+        let fitted =
+            pre.transform
+                .apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
+        let data = Standardised::new(&fitted, &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
+        if pre.transform != Transform::None {
+            // Priors are set on the fitted scale, but the grid is on the original scale:
+            // take its defaults from the untransformed sample, starting at 0 at the lowest.
+            let on_x = resolve(
+                &raw,
+                text,
+                origin,
+                dir,
+                Some(&DataSummary::of(&sample.values, &data_origin)?),
+            )?;
+            let given = raw.grid.clone().unwrap_or_default();
+            config.grid_from = given.from.unwrap_or(on_x.grid_from.max(0.0));
+            config.grid_to = given.to.unwrap_or(on_x.grid_to);
+        }
         // RUN/config.toml must find the data from inside the run directory (sample it again,
         // `bands`, `resume`, `extend`), so it records the absolute path, not the path as
         // written relative to the original config's folder.

@@ -10,9 +10,10 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use serde::{Deserialize, Serialize};
 
-use super::allocate::{loglik, ComponentTable};
+use super::allocate::{loglik_with, AllocOptions, ComponentTable};
+use super::label_moves::EXACT;
 use super::rng::StreamKey;
-use super::sweep::sweep;
+use super::sweep::sweep_alloc;
 use crate::error::Result;
 use crate::model::{Prior, State};
 
@@ -81,6 +82,31 @@ pub fn run_chain(
     sink: &mut dyn DrawSink,
     stop: &AtomicBool,
 ) -> Result<ChainStop> {
+    run_chain_with(
+        x,
+        prior,
+        key,
+        plan,
+        start,
+        sink,
+        stop,
+        AllocOptions::default(),
+    )
+}
+
+/// [`run_chain`] with explicit allocation options (threads per chain); the draws do not
+/// depend on them.
+#[allow(clippy::too_many_arguments)]
+pub fn run_chain_with(
+    x: &[f64],
+    prior: &Prior,
+    key: &StreamKey,
+    plan: ChainPlan,
+    start: Checkpoint,
+    sink: &mut dyn DrawSink,
+    stop: &AtomicBool,
+    alloc: AllocOptions,
+) -> Result<ChainStop> {
     let Checkpoint {
         sweeps_done,
         mut state,
@@ -99,7 +125,7 @@ pub fn run_chain(
             return Ok(ChainStop::Interrupted { sweeps_done: t });
         }
         let previous = pending_occupied.take().map(|occ| (occ, state.clone()));
-        let out = sweep(x, prior, &mut state, key, t + 1);
+        let out = sweep_alloc(x, prior, &mut state, key, t + 1, &EXACT, alloc);
         if let Some((occupied, prev_state)) = previous {
             sink.draw(KeptDraw {
                 iteration: t,
@@ -120,7 +146,7 @@ pub fn run_chain(
         sink.checkpoint(&snapshot, false)?;
     }
     if let Some(occupied) = pending_occupied.take() {
-        let ll = loglik(x, &ComponentTable::new(&state));
+        let ll = loglik_with(x, &ComponentTable::new(&state), alloc);
         sink.draw(KeptDraw {
             iteration: t,
             loglik: ll,

@@ -2,7 +2,7 @@
 //! concentration given the counts (weights integrated out), weights, component
 //! parameters, hyperparameters.
 
-use super::allocate::{allocate, ComponentTable};
+use super::allocate::{allocate_with, AllocOptions, ComponentTable};
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
@@ -23,7 +23,7 @@ pub struct SweepOutcome {
     pub moves: MoveTally,
 }
 
-/// Advances `state` by one sweep numbered `index` (from 1).
+/// Advances `state` by one sweep numbered `index` (from 1), allocating on one thread.
 pub fn sweep(
     x: &[f64],
     prior: &Prior,
@@ -44,9 +44,23 @@ pub fn sweep_with(
     index: u64,
     ratios: &MoveRatios,
 ) -> SweepOutcome {
+    sweep_alloc(x, prior, state, key, index, ratios, AllocOptions::default())
+}
+
+/// [`sweep_with`] with explicit allocation options (threads for the blocks); the result
+/// does not depend on `alloc.threads` or `alloc.simd`.
+pub fn sweep_alloc(
+    x: &[f64],
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    ratios: &MoveRatios,
+    alloc: AllocOptions,
+) -> SweepOutcome {
     pin_fixed(prior, state);
     let table = ComponentTable::new(state);
-    let mut alloc = allocate(x, &table, key, index);
+    let mut alloc = allocate_with(x, &table, key, index, alloc);
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
         moves = label_moves(&mut alloc.stats, state, ratios, &mut key.label_rng(index));

@@ -37,6 +37,12 @@ impl RunLayout {
     pub fn bands_json(&self) -> PathBuf {
         self.root.join("bands.json")
     }
+    pub fn cdf_csv(&self) -> PathBuf {
+        self.root.join("cdf.csv")
+    }
+    pub fn summary_json(&self) -> PathBuf {
+        self.root.join("summary.json")
+    }
     pub fn diagnostics_json(&self) -> PathBuf {
         self.root.join("diagnostics.json")
     }

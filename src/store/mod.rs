@@ -7,6 +7,7 @@
 //! RUN/draws/chain-<i>.csv    one row per kept draw, data units
 //! RUN/state/chain-<i>.json   checkpoint: sampler state and store length
 //! RUN/bands.csv, bands.json  density summaries on the grid
+//! RUN/cdf.csv, summary.json  CDF bands; quantiles, moments, modes, occupied components
 //! ```
 
 mod atomic;

@@ -1,10 +1,12 @@
 //! Pointwise posterior summaries of the density: mean (the posterior predictive density),
-//! median and equal-tailed credible bands at each level, written as CSV and JSON.
+//! median and equal-tailed credible bands at each level, and simultaneous bands over the
+//! whole grid (see [`super::simultaneous`]), written as CSV and JSON.
 
 use serde::Serialize;
 
 use super::density::DensityDraws;
 use super::quantile::quantile_sorted;
+use super::simultaneous::{simultaneous_bands, SimultaneousBand};
 use crate::numfmt::fmt_f64;
 
 /// Pointwise summaries over draws.
@@ -17,6 +19,11 @@ pub struct Bands {
     /// lower[l][g], upper[l][g] for level `levels[l]`.
     pub lower: Vec<Vec<f64>>,
     pub upper: Vec<Vec<f64>>,
+    /// Pointwise posterior standard deviation (divisor S − 1).
+    pub sd: Vec<f64>,
+    /// Simultaneous bands, one per level, in the order of `levels`.
+    #[serde(skip)]
+    pub simul: Vec<SimultaneousBand>,
     pub draws_used: usize,
 }
 
@@ -27,7 +34,14 @@ pub fn level_label(level: f64) -> String {
 }
 
 impl Bands {
+    /// Bands of densities: simultaneous bands are clipped at 0.
     pub fn new(dens: &DensityDraws, levels: &[f64]) -> Self {
+        Self::new_clipped(dens, levels, 0.0, f64::INFINITY)
+    }
+
+    /// Bands of any per-draw curve whose values lie in [lo, hi] (a CDF: [0, 1]); the
+    /// simultaneous bands are clipped to that range.
+    pub fn new_clipped(dens: &DensityDraws, levels: &[f64], lo: f64, hi: f64) -> Self {
         let g = dens.grid.len();
         let mut b = Bands {
             x: dens.grid.clone(),
@@ -36,11 +50,21 @@ impl Bands {
             levels: levels.to_vec(),
             lower: vec![Vec::with_capacity(g); levels.len()],
             upper: vec![Vec::with_capacity(g); levels.len()],
+            sd: Vec::with_capacity(g),
+            simul: Vec::new(),
             draws_used: dens.chains * dens.draws,
         };
         for i in 0..g {
             let mut v = dens.pooled(i);
-            b.mean.push(v.iter().sum::<f64>() / v.len() as f64);
+            let n = v.len() as f64;
+            let mean = v.iter().sum::<f64>() / n;
+            b.mean.push(mean);
+            let ss: f64 = v.iter().map(|&y| (y - mean) * (y - mean)).sum();
+            b.sd.push(if v.len() > 1 {
+                (ss / (n - 1.0)).sqrt()
+            } else {
+                0.0
+            });
             v.sort_by(f64::total_cmp);
             b.median.push(quantile_sorted(&v, 0.5));
             for (l, &level) in levels.iter().enumerate() {
@@ -48,15 +72,21 @@ impl Bands {
                 b.upper[l].push(quantile_sorted(&v, 0.5 * (1.0 + level)));
             }
         }
+        b.simul = simultaneous_bands(&dens.values, g, &b.mean, &b.sd, levels, lo, hi);
         b
     }
 
-    /// CSV text: `x, mean, median`, then `lower_<L>, upper_<L>` per level.
+    /// CSV text: `x, mean, median`, then `lower_<L>, upper_<L>` per level, then
+    /// `simul_lower_<L>, simul_upper_<L>` per level.
     pub fn to_csv(&self) -> String {
         let mut s = String::from("x,mean,median");
         for &l in &self.levels {
             let lab = level_label(l);
             s.push_str(&format!(",lower_{lab},upper_{lab}"));
+        }
+        for &l in &self.levels {
+            let lab = level_label(l);
+            s.push_str(&format!(",simul_lower_{lab},simul_upper_{lab}"));
         }
         s.push('\n');
         for i in 0..self.x.len() {
@@ -70,6 +100,12 @@ impl Bands {
                 s.push_str(&fmt_f64(self.lower[l][i]));
                 s.push(',');
                 s.push_str(&fmt_f64(self.upper[l][i]));
+            }
+            for band in &self.simul {
+                s.push(',');
+                s.push_str(&fmt_f64(band.lower[i]));
+                s.push(',');
+                s.push_str(&fmt_f64(band.upper[i]));
             }
             s.push('\n');
         }

@@ -1,5 +1,8 @@
-//! The mixture density of each stored draw on a grid, on the data scale.
+//! The mixture density of each stored draw on a grid, on the data scale. Draws are stored
+//! on the fitted scale; under `[data] transform = "log"` the density of x is the fitted
+//! density at ln x times the Jacobian 1/x (see [`crate::data::Transform`]).
 
+use crate::data::Transform;
 use crate::dist::LN_SQRT_2PI;
 use crate::store::{DrawRow, RunDraws};
 
@@ -13,7 +16,16 @@ pub fn mixture_density(row: &DrawRow, x: f64) -> f64 {
     f
 }
 
-/// Densities of every draw on a grid: `values[(c * draws + d) * grid + g]`.
+/// The density of the original-scale variable at `x` for a draw fitted on scale `t`.
+pub fn mixture_density_on(row: &DrawRow, x: f64, t: Transform) -> f64 {
+    if !t.in_support(x) {
+        return 0.0;
+    }
+    mixture_density(row, t.forward(x)) * t.log_jacobian(x).exp()
+}
+
+/// A curve of every draw on a grid (the density, or the CDF built by
+/// [`super::cdf::cdf_draws`]): `values[(c * draws + d) * grid + g]`.
 #[derive(Debug, Clone, PartialEq)]
 pub struct DensityDraws {
     pub grid: Vec<f64>,
@@ -26,12 +38,22 @@ pub struct DensityDraws {
 impl DensityDraws {
     /// Evaluates every draw of `run` (cut to the shortest chain) on `grid`.
     pub fn new(run: &RunDraws, grid: &[f64]) -> Self {
+        Self::from_fn(run, grid, mixture_density)
+    }
+
+    /// Densities on the original scale of draws fitted on scale `t`.
+    pub fn new_on(run: &RunDraws, grid: &[f64], t: Transform) -> Self {
+        Self::from_fn(run, grid, |row, x| mixture_density_on(row, x, t))
+    }
+
+    /// Evaluates `curve(draw, x)` for every draw of `run` (cut to the shortest chain).
+    pub fn from_fn(run: &RunDraws, grid: &[f64], curve: impl Fn(&DrawRow, f64) -> f64) -> Self {
         let draws = run.min_len();
         let g = grid.len();
         let mut values = Vec::with_capacity(run.chains.len() * draws * g);
         for c in &run.chains {
             for row in &c.rows[..draws] {
-                values.extend(grid.iter().map(|&x| mixture_density(row, x)));
+                values.extend(grid.iter().map(|&x| curve(row, x)));
             }
         }
         DensityDraws {

@@ -1,12 +1,27 @@
-//! Turning stored draws into densities on a grid: the mixture density of each draw, and
-//! pointwise summaries over draws (posterior mean, median, credible bands).
+//! Turning stored draws into answers on a grid and beyond: the mixture density and CDF of
+//! each draw, pointwise and simultaneous bands, posterior summaries of quantiles, mean and
+//! sd of the distribution, and the posterior of the number of modes and of occupied
+//! components.
 
 mod bands;
+mod cdf;
 mod density;
+mod functionals;
 mod grid;
+mod modes;
 mod quantile;
+mod simultaneous;
 
 pub use bands::{level_label, Bands};
-pub use density::{mixture_density, DensityDraws};
+pub use cdf::{cdf_draws, mixture_cdf, mixture_cdf_on, std_normal_cdf};
+pub use density::{mixture_density, mixture_density_on, DensityDraws};
+pub use functionals::{
+    mixture_mean, mixture_mean_on, mixture_quantile, mixture_quantile_on, mixture_sd,
+    mixture_sd_on, Interval, Posterior,
+};
 pub use grid::linspace;
+pub use modes::{count_modes, distribution, CountProbability, MIN_RELATIVE_PROMINENCE};
 pub use quantile::quantile_sorted;
+pub use simultaneous::{
+    critical_value, max_standardised_deviation, simultaneous_bands, SimultaneousBand,
+};
