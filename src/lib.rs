@@ -31,6 +31,8 @@ pub mod error;
 pub mod gate;
 pub mod model;
 pub mod numfmt;
+pub mod plot;
+pub mod report;
 pub mod run;
 pub mod sampler;
 pub mod store;

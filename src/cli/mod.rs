@@ -7,6 +7,8 @@ mod compare;
 mod demo;
 mod diagnose;
 mod merge;
+mod plot;
+mod report;
 mod sample;
 mod template;
 
@@ -44,6 +46,9 @@ pub struct SampleOpts {
     /// No progress bars.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Skip the figures (RUN/plots/) and RUN/report.html.
+    #[arg(long)]
+    pub no_report: bool,
 }
 
 #[derive(Debug, Subcommand)]
@@ -118,6 +123,20 @@ pub enum Command {
         #[arg(long, value_delimiter = ',')]
         levels: Option<Vec<f64>>,
     },
+    /// Draw the figures of a run into RUN/plots/ (SVG).
+    Plot {
+        run: PathBuf,
+        /// Add a Gaussian kernel estimate at Silverman's bandwidth for comparison.
+        #[arg(long)]
+        with_kde: bool,
+    },
+    /// Write RUN/report.html: one self-contained page with the figures and diagnostics.
+    Report {
+        run: PathBuf,
+        /// Add a Gaussian kernel estimate at Silverman's bandwidth to the density figure.
+        #[arg(long)]
+        with_kde: bool,
+    },
     /// Compare runs on the same data by PSIS-LOO and WAIC (expected log predictive density).
     Compare {
         /// Two or more run directories.
@@ -175,6 +194,8 @@ pub fn run(cli: Cli) -> Result<i32> {
             to,
             levels,
         } => bands::bands(&run, points, from, to, levels),
+        Command::Plot { run, with_kde } => plot::plot(&run, with_kde),
+        Command::Report { run, with_kde } => report::report(&run, with_kde),
         Command::Compare { runs, json } => compare::compare(&runs, json),
         Command::Bench(a) => bench::bench(&a),
         Command::Diagnose {

@@ -81,6 +81,10 @@ pub(super) fn finish(
     }
     let layout = RunLayout::new(out);
     let report = super::bands::summarise(&layout, prep)?;
+    if !opts.no_report {
+        let page = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
+        println!("mixband: report in {}", page.display());
+    }
     println!("mixband: wrote {}", out.display());
     Ok(super::diagnose::print_verdict(&report))
 }
