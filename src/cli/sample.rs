@@ -49,7 +49,7 @@ pub(super) fn finish(
     }
     let c = &prep.config;
     eprintln!(
-        "mixband: {} chains x {} draws (warm-up {}, thin {}) of a {:?} mixture, K = {}, {:?} weights, on {} observations of \"{}\"{}",
+        "mixband: {} chains x {} draws (warm-up {}, thin {}) of a {} mixture, K = {}, {} weights, on {} observations of \"{}\"{}",
         c.chain_id_list().len(),
         c.draws,
         c.warmup,

@@ -141,3 +141,22 @@ pub struct GateSection {
     pub min_ess: Option<f64>,
     pub min_chains: Option<i64>,
 }
+
+/// The names used in config files, also used in messages and figures.
+impl std::fmt::Display for Kernel {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Kernel::Location => "location",
+            Kernel::LocationScale => "location-scale",
+        })
+    }
+}
+
+impl std::fmt::Display for WeightsKind {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            WeightsKind::Dirichlet => "dirichlet",
+            WeightsKind::StickBreaking => "stick-breaking",
+        })
+    }
+}

@@ -230,7 +230,7 @@ pub(super) fn draw_heading(
     .map_err(plot_err)?;
     let c = &inp.prep.config;
     let sub = format!(
-        "n = {} · {} chains × {} draws · {:?} kernel, K = {}",
+        "n = {} · {} chains × {} draws · {} kernel, K = {}",
         inp.prep.record.n,
         inp.draws.chains.len(),
         inp.draws.min_len(),

@@ -158,7 +158,7 @@ fn metadata(out: &mut String, inp: &RunInputs) {
         (
             "model",
             format!(
-                "{:?} kernel, {:?} weights, K = {}",
+                "{} kernel, {} weights, K = {}",
                 c.kernel, c.weights, c.components
             ),
         ),
