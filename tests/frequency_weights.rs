@@ -184,14 +184,10 @@ fn unit_counts_give_the_reference_allocation_and_logliks_agree() {
         }
     }
     let total = a.stats.total() as f64;
-    for j in 0..3 {
-        let sd = (expect[j] * (1.0 - expect[j] / total)).sqrt();
+    for (j, &ex) in expect.iter().enumerate() {
+        let sd = (ex * (1.0 - ex / total)).sqrt();
         let got = a.stats.n[j] as f64;
-        assert!(
-            (got - expect[j]).abs() < 5.0 * sd,
-            "component {j}: {got} vs {}",
-            expect[j]
-        );
+        assert!((got - ex).abs() < 5.0 * sd, "component {j}: {got} vs {ex}");
     }
 }
 
