@@ -108,6 +108,13 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
             dir.display()
         )));
     }
+    if prep.data.counts.is_some() {
+        return Err(Error::input(format!(
+            "{}: the run uses [data] weights (frequency weights); compare works on one \
+             pointwise log-likelihood per observation and does not support weighted runs",
+            dir.display()
+        )));
+    }
     let t = prep.config.transform;
     let y: Vec<f64> = prep.data.z.iter().map(|&z| prep.data.to_data(z)).collect();
     let jac: Vec<f64> = y.iter().map(|&v| t.log_jacobian(t.inverse(v))).collect();

@@ -62,6 +62,9 @@ pub struct DataSection {
     pub missing: Option<MissingPolicy>,
     /// "none" or "log": the scale the mixture is fitted on (see src/data/transform.rs).
     pub transform: Option<crate::data::Transform>,
+    /// Header name of a column of integer frequency weights (binned or tabulated data).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub weights: Option<String>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

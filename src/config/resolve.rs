@@ -51,6 +51,8 @@ pub struct RunConfig {
     pub units: Option<String>,
     pub missing: MissingPolicy,
     pub transform: crate::data::Transform,
+    /// `[data] weights`: column of integer frequency weights, if any.
+    pub freq_weights: Option<String>,
     pub kernel: Kernel,
     pub weights: WeightsKind,
     pub components: usize,
@@ -192,6 +194,19 @@ pub fn resolve(
         .ok_or_else(|| ck.missing("data", "column"))?;
     if column.trim().is_empty() {
         return Err(ck.fail("data", "column", "must not be empty".into()));
+    }
+    let freq_weights = data.weights.clone();
+    if let Some(w) = &freq_weights {
+        if w.trim().is_empty() {
+            return Err(ck.fail("data", "weights", "must not be empty".into()));
+        }
+        if w.trim() == column.trim() {
+            return Err(ck.fail(
+                "data",
+                "weights",
+                "names the data column itself; give the column of counts".into(),
+            ));
+        }
     }
     let data_file = if Path::new(&file).is_absolute() {
         PathBuf::from(&file)
@@ -365,6 +380,7 @@ pub fn resolve(
         units: data.units.clone(),
         missing: data.missing.unwrap_or(MissingPolicy::Error),
         transform: data.transform.unwrap_or_default(),
+        freq_weights,
         kernel,
         weights,
         components,
@@ -457,6 +473,7 @@ impl RunConfig {
                 units: self.units.clone(),
                 missing: Some(self.missing),
                 transform: Some(self.transform),
+                weights: self.freq_weights.clone(),
             }),
             model: Some(ModelSection {
                 kernel: Some(self.kernel),

@@ -11,6 +11,7 @@ column = "value"              # header name of the numeric column
 # units = "mm"                # used in axis labels
 missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
 transform = "none"            # "none", or "log" for positive data: fit ln x, report the density of x
+# weights = "count"           # column of integer frequency weights (binned/tabulated data; 0 drops a row)
 
 [model]
 kernel = "location-scale"     # "location": one common sd (bandwidth) for all components

@@ -1,6 +1,7 @@
 //! Reads one column of a CSV file by header name. Every cell is checked: non-numeric text,
 //! NaN and infinities are rejected with their row number; empty cells follow the
-//! configured missing-value policy.
+//! configured missing-value policy. An optional second column holds integer frequency
+//! weights (`[data] weights`): each cell a non-negative integer, rows of weight 0 dropped.
 
 use std::io::Read;
 use std::path::Path;
@@ -16,6 +17,10 @@ pub struct Sample {
     pub dropped: usize,
     /// (file line, data row) of each value, for messages about individual values.
     pub origins: Vec<(u64, usize)>,
+    /// Frequency weight of each value (`[data] weights`, all ≥ 1); `None`: one each.
+    pub counts: Option<Vec<u64>>,
+    /// Rows dropped because their weight is 0.
+    pub zero_weight: usize,
 }
 
 /// Loads column `column` of the CSV file at `path`.
@@ -25,11 +30,35 @@ pub fn load_column(path: &Path, column: &str, missing: MissingPolicy) -> Result<
     load_column_from_reader(file, &path.display().to_string(), column, missing)
 }
 
+/// Loads column `column` with frequency weights from column `weights` (when given) of the
+/// CSV file at `path`.
+pub fn load_weighted(
+    path: &Path,
+    column: &str,
+    weights: Option<&str>,
+    missing: MissingPolicy,
+) -> Result<Sample> {
+    let file = std::fs::File::open(path)
+        .map_err(|e| Error::input(format!("cannot open data file {}: {e}", path.display())))?;
+    load_weighted_from_reader(file, &path.display().to_string(), column, weights, missing)
+}
+
 /// Loads column `column` from CSV bytes; `origin` names the source in messages.
 pub fn load_column_from_reader<R: Read>(
     reader: R,
     origin: &str,
     column: &str,
+    missing: MissingPolicy,
+) -> Result<Sample> {
+    load_weighted_from_reader(reader, origin, column, None, missing)
+}
+
+/// [`load_column_from_reader`] with frequency weights from column `weights` when given.
+pub fn load_weighted_from_reader<R: Read>(
+    reader: R,
+    origin: &str,
+    column: &str,
+    weights: Option<&str>,
     missing: MissingPolicy,
 ) -> Result<Sample> {
     let mut rdr = csv::ReaderBuilder::new()
@@ -41,33 +70,13 @@ pub fn load_column_from_reader<R: Read>(
         .headers()
         .map_err(|e| Error::input(format!("{origin}: cannot read the header row: {e}")))?
         .clone();
-    let idx = headers
-        .iter()
-        .position(|h| h.trim() == column)
-        .ok_or_else(|| {
-            let names: Vec<String> = headers.iter().map(|h| format!("\"{h}\"")).collect();
-            Error::input(format!(
-                "{origin}: no column \"{column}\"; the header has {}",
-                if names.is_empty() {
-                    "no columns".to_string()
-                } else {
-                    names.join(", ")
-                }
-            ))
-        })?;
-    let same: Vec<String> = headers
-        .iter()
-        .enumerate()
-        .filter(|(_, h)| h.trim() == column)
-        .map(|(i, _)| (i + 1).to_string())
-        .collect();
-    if same.len() > 1 {
-        return Err(Error::input(format!(
-            "{origin}: the header names column \"{column}\" {} times (columns {}); rename all but one",
-            same.len(),
-            same.join(", ")
-        )));
-    }
+    let idx = find_column(&headers, origin, column)?;
+    let widx = match weights {
+        Some(w) => Some(find_column(&headers, origin, w)?),
+        None => None,
+    };
+    let mut counts = Vec::new();
+    let mut zero_weight = 0usize;
     let mut values = Vec::new();
     let mut dropped = 0;
     let mut record = csv::StringRecord::new();
@@ -112,14 +121,49 @@ pub fn load_column_from_reader<R: Read>(
                 "{origin}: line {line} (data row {row}): column \"{column}\" holds {cell}; only finite numbers are allowed"
             )));
         }
+        if let (Some(wi), Some(wname)) = (widx, weights) {
+            let wcell = record.get(wi).unwrap_or("").trim();
+            if wcell.is_empty() {
+                match missing {
+                    MissingPolicy::Drop => {
+                        dropped += 1;
+                        continue;
+                    }
+                    MissingPolicy::Error => {
+                        return Err(Error::input(format!(
+                            "{origin}: line {line} (data row {row}): weights column \"{wname}\" is empty; \
+                             set [data] missing = \"drop\" to drop rows with empty cells"
+                        )))
+                    }
+                }
+            }
+            let c: u64 = wcell
+                .strip_prefix('+')
+                .unwrap_or(wcell)
+                .parse()
+                .ok()
+                .filter(|_| wcell.bytes().all(|b| b.is_ascii_digit() || b == b'+'))
+                .ok_or_else(|| {
+                    Error::input(format!(
+                        "{origin}: line {line} (data row {row}): weights column \"{wname}\" holds \"{}\", \
+                         not a non-negative integer (frequency weights count observations)",
+                        truncate(wcell)
+                    ))
+                })?;
+            if c == 0 {
+                zero_weight += 1;
+                continue;
+            }
+            counts.push(c);
+        }
         values.push(v);
         origins.push((line, row));
     }
     if values.is_empty() {
         return Err(Error::input(format!(
             "{origin}: column \"{column}\" holds no observations{}",
-            if dropped > 0 {
-                format!(" ({dropped} empty cells dropped)")
+            if dropped > 0 || zero_weight > 0 {
+                format!(" ({dropped} empty cells dropped, {zero_weight} rows of weight 0)")
             } else {
                 String::new()
             }
@@ -129,7 +173,41 @@ pub fn load_column_from_reader<R: Read>(
         values,
         dropped,
         origins,
+        counts: weights.map(|_| counts),
+        zero_weight,
     })
+}
+
+/// Position of the column named `column` in `headers`; it must occur exactly once.
+fn find_column(headers: &csv::StringRecord, origin: &str, column: &str) -> Result<usize> {
+    let idx = headers
+        .iter()
+        .position(|h| h.trim() == column)
+        .ok_or_else(|| {
+            let names: Vec<String> = headers.iter().map(|h| format!("\"{h}\"")).collect();
+            Error::input(format!(
+                "{origin}: no column \"{column}\"; the header has {}",
+                if names.is_empty() {
+                    "no columns".to_string()
+                } else {
+                    names.join(", ")
+                }
+            ))
+        })?;
+    let same: Vec<String> = headers
+        .iter()
+        .enumerate()
+        .filter(|(_, h)| h.trim() == column)
+        .map(|(i, _)| (i + 1).to_string())
+        .collect();
+    if same.len() > 1 {
+        return Err(Error::input(format!(
+            "{origin}: the header names column \"{column}\" {} times (columns {}); rename all but one",
+            same.len(),
+            same.join(", ")
+        )));
+    }
+    Ok(idx)
 }
 
 fn truncate(s: &str) -> String {

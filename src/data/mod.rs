@@ -5,6 +5,8 @@ mod load;
 mod standardise;
 mod transform;
 
-pub use load::{load_column, load_column_from_reader, Sample};
+pub use load::{
+    load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, Sample,
+};
 pub use standardise::{DataSummary, Standardised};
 pub use transform::Transform;

@@ -36,6 +36,8 @@ pub struct DataSummary {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Standardised {
     pub z: Vec<f64>,
+    /// Integer frequency weight of each row of `z` (`[data] weights`); `None`: one each.
+    pub counts: Option<Vec<u64>>,
     pub centre: f64,
     pub scale: f64,
     pub summary: DataSummary,
@@ -44,7 +46,15 @@ pub struct Standardised {
 impl DataSummary {
     /// Summarises `x`; `origin` names the data in messages.
     pub fn of(x: &[f64], origin: &str) -> Result<Self> {
-        let n = x.len();
+        Self::of_counts(x, None, origin)
+    }
+
+    /// Summarises `x` where row i stands for `counts[i]` equal observations (integer
+    /// frequency weights; `None`: one each): the summary of the expanded sample, with n the
+    /// total count. Rows with count 0 are ignored.
+    pub fn of_counts(x: &[f64], counts: Option<&[u64]>, origin: &str) -> Result<Self> {
+        let count = |i: usize| counts.map_or(1, |c| c[i]);
+        let n = (0..x.len()).map(|i| count(i) as usize).sum::<usize>();
         if n < 2 {
             return Err(Error::input(format!(
                 "{origin}: {n} observation(s); at least 2 are needed to estimate a density"
@@ -53,9 +63,21 @@ impl DataSummary {
         let mut mean = 0.0f64;
         let mut min = f64::INFINITY;
         let mut max = f64::NEG_INFINITY;
+        let mut seen = 0u64;
         for (i, &v) in x.iter().enumerate() {
-            // Running mean: mean += (v − mean)/(i+1), written to avoid overflow of v − mean.
-            mean += v / (i + 1) as f64 - mean / (i + 1) as f64;
+            let c = count(i);
+            if c == 0 {
+                continue;
+            }
+            seen += c;
+            // Running mean: mean += c(v − mean)/seen, written to avoid overflow of v − mean
+            // (for c = 1 exactly the unweighted update).
+            let f = c as f64 / seen as f64;
+            mean += if c == 1 {
+                v / seen as f64 - mean / seen as f64
+            } else {
+                f * v - f * mean
+            };
             min = min.min(v);
             max = max.max(v);
         }
@@ -76,7 +98,14 @@ impl DataSummary {
             )));
         }
         let big = (max - mean).abs().max((mean - min).abs());
-        let ss: f64 = x.iter().map(|&v| ((v - mean) / big).powi(2)).sum();
+        let ss: f64 = match counts {
+            None => x.iter().map(|&v| ((v - mean) / big).powi(2)).sum(),
+            Some(c) => x
+                .iter()
+                .zip(c)
+                .map(|(&v, &ci)| ci as f64 * ((v - mean) / big).powi(2))
+                .sum(),
+        };
         let sd = big * (ss / (n - 1) as f64).sqrt();
         if !(sd.is_finite() && sd >= MIN_SD) {
             return Err(Error::input(format!(
@@ -105,7 +134,16 @@ impl DataSummary {
 impl Standardised {
     /// Standardises `x` by its mean and sd.
     pub fn new(x: &[f64], origin: &str) -> Result<Self> {
-        let summary = DataSummary::of(x, origin)?;
+        Self::with_counts(x, None, origin)
+    }
+
+    /// Standardises rows `x` with integer frequency weights `counts` (one per row, none
+    /// zero; `None`: one each) by the expanded sample's mean and sd.
+    pub fn with_counts(x: &[f64], counts: Option<Vec<u64>>, origin: &str) -> Result<Self> {
+        if let Some(c) = &counts {
+            assert_eq!(c.len(), x.len(), "one count per row");
+        }
+        let summary = DataSummary::of_counts(x, counts.as_deref(), origin)?;
         let (centre, scale) = (summary.mean, summary.sd);
         let z: Vec<f64> = x.iter().map(|&v| (v - centre) / scale).collect();
         if z.iter().any(|v| !v.is_finite()) {
@@ -115,6 +153,7 @@ impl Standardised {
         }
         Ok(Standardised {
             z,
+            counts,
             centre,
             scale,
             summary,

@@ -110,7 +110,17 @@ impl RunInputs {
         }
         let bands = StoredBands::read(&layout.bands_json())?;
         let d = &prep.data;
-        let observations = d.z.iter().map(|z| d.centre + d.scale * z).collect();
+        // Frequency-weighted rows are expanded: histogram, rug and kernel estimate see the
+        // sample the weights stand for.
+        let observations = match &d.counts {
+            None => d.z.iter().map(|z| d.centre + d.scale * z).collect(),
+            Some(c) => {
+                d.z.iter()
+                    .zip(c)
+                    .flat_map(|(z, &ci)| std::iter::repeat_n(d.centre + d.scale * z, ci as usize))
+                    .collect()
+            }
+        };
         Ok(RunInputs {
             layout,
             manifest,

@@ -16,7 +16,7 @@ use super::prepare::Prepared;
 use crate::error::{Error, Result};
 use crate::sampler::rng::StreamKey;
 use crate::sampler::{
-    initial_state, run_chain_with, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
+    initial_state, run_chain_counts, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
 };
 use crate::store::{
     read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
@@ -163,7 +163,7 @@ pub fn execute(
     let units = Units {
         centre: prep.data.centre,
         scale: prep.data.scale,
-        n: prep.data.z.len(),
+        n: prep.data.summary.n,
     };
     let x = &prep.data.z;
     let multi = MultiProgress::with_draw_target(if opts.quiet {
@@ -312,6 +312,17 @@ fn run_one(
     };
     bar.set_position(start.sweeps_done);
     writer = writer.with_progress(bar);
-    let stop_kind = run_chain_with(x, &prep.prior, &key, plan, start, &mut writer, stop, alloc)?;
+    let counts = prep.data.counts.as_deref();
+    let stop_kind = run_chain_counts(
+        x,
+        counts,
+        &prep.prior,
+        &key,
+        plan,
+        start,
+        &mut writer,
+        stop,
+        alloc,
+    )?;
     Ok((stop_kind, writer.draws_written()))
 }

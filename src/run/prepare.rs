@@ -7,7 +7,7 @@ use std::path::Path;
 use sha2::{Digest, Sha256};
 
 use crate::config::{parse_config_str, resolve, RunConfig};
-use crate::data::{load_column, load_column_from_reader, DataSummary, Standardised, Transform};
+use crate::data::{load_weighted, load_weighted_from_reader, DataSummary, Standardised, Transform};
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
 use crate::store::DataRecord;
@@ -57,7 +57,13 @@ impl Prepared {
         let pre = resolve(&raw, text, origin, dir, None)?;
         let (sample, bytes_hash, abs) = match data_bytes {
             Some(b) => (
-                load_column_from_reader(b, &pre.data_file_text, &pre.column, pre.missing)?,
+                load_weighted_from_reader(
+                    b,
+                    &pre.data_file_text,
+                    &pre.column,
+                    pre.freq_weights.as_deref(),
+                    pre.missing,
+                )?,
                 sha256_hex(b),
                 pre.data_file_text.clone(),
             ),
@@ -68,7 +74,12 @@ impl Prepared {
                         pre.data_file.display()
                     ))
                 })?;
-                let s = load_column(&pre.data_file, &pre.column, pre.missing)?;
+                let s = load_weighted(
+                    &pre.data_file,
+                    &pre.column,
+                    pre.freq_weights.as_deref(),
+                    pre.missing,
+                )?;
                 let abs = std::fs::canonicalize(&pre.data_file)
                     .unwrap_or_else(|_| pre.data_file.clone())
                     .display()
@@ -80,7 +91,7 @@ impl Prepared {
         let fitted =
             pre.transform
                 .apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
-        let data = Standardised::new(&fitted, &data_origin)?;
+        let data = Standardised::with_counts(&fitted, sample.counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
         if pre.transform != Transform::None {
@@ -91,7 +102,11 @@ impl Prepared {
                 text,
                 origin,
                 dir,
-                Some(&DataSummary::of(&sample.values, &data_origin)?),
+                Some(&DataSummary::of_counts(
+                    &sample.values,
+                    sample.counts.as_deref(),
+                    &data_origin,
+                )?),
             )?;
             let given = raw.grid.clone().unwrap_or_default();
             config.grid_from = given.from.unwrap_or(on_x.grid_from.max(0.0));

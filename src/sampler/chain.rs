@@ -10,10 +10,10 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use serde::{Deserialize, Serialize};
 
-use super::allocate::{loglik_with, AllocOptions, ComponentTable};
+use super::allocate::{loglik_weighted, loglik_with, AllocOptions, ComponentTable};
 use super::label_moves::EXACT;
 use super::rng::StreamKey;
-use super::sweep::sweep_alloc;
+use super::sweep::sweep_counts;
 use crate::error::Result;
 use crate::model::{Prior, State};
 
@@ -107,6 +107,23 @@ pub fn run_chain_with(
     stop: &AtomicBool,
     alloc: AllocOptions,
 ) -> Result<ChainStop> {
+    run_chain_counts(x, None, prior, key, plan, start, sink, stop, alloc)
+}
+
+/// [`run_chain_with`] for rows with integer frequency weights `counts` (one per row of
+/// `x`; `None`: every row counts once).
+#[allow(clippy::too_many_arguments)]
+pub fn run_chain_counts(
+    x: &[f64],
+    counts: Option<&[u64]>,
+    prior: &Prior,
+    key: &StreamKey,
+    plan: ChainPlan,
+    start: Checkpoint,
+    sink: &mut dyn DrawSink,
+    stop: &AtomicBool,
+    alloc: AllocOptions,
+) -> Result<ChainStop> {
     let Checkpoint {
         sweeps_done,
         mut state,
@@ -125,7 +142,7 @@ pub fn run_chain_with(
             return Ok(ChainStop::Interrupted { sweeps_done: t });
         }
         let previous = pending_occupied.take().map(|occ| (occ, state.clone()));
-        let out = sweep_alloc(x, prior, &mut state, key, t + 1, &EXACT, alloc);
+        let out = sweep_counts(x, counts, prior, &mut state, key, t + 1, &EXACT, alloc);
         if let Some((occupied, prev_state)) = previous {
             sink.draw(KeptDraw {
                 iteration: t,
@@ -146,7 +163,11 @@ pub fn run_chain_with(
         sink.checkpoint(&snapshot, false)?;
     }
     if let Some(occupied) = pending_occupied.take() {
-        let ll = loglik_with(x, &ComponentTable::new(&state), alloc);
+        let table = ComponentTable::new(&state);
+        let ll = match counts {
+            Some(c) => loglik_weighted(x, c, &table),
+            None => loglik_with(x, &table, alloc),
+        };
         sink.draw(KeptDraw {
             iteration: t,
             loglik: ll,

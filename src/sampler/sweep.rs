@@ -2,7 +2,7 @@
 //! concentration given the counts (weights integrated out), weights, component
 //! parameters, hyperparameters.
 
-use super::allocate::{allocate_with, AllocOptions, ComponentTable};
+use super::allocate::{allocate_weighted, allocate_with, AllocOptions, ComponentTable};
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
@@ -58,9 +58,28 @@ pub fn sweep_alloc(
     ratios: &MoveRatios,
     alloc: AllocOptions,
 ) -> SweepOutcome {
+    sweep_counts(x, None, prior, state, key, index, ratios, alloc)
+}
+
+/// [`sweep_alloc`] for rows with integer frequency weights `counts` (one per row of `x`;
+/// `None`: every row counts once, the fast path).
+#[allow(clippy::too_many_arguments)]
+pub fn sweep_counts(
+    x: &[f64],
+    counts: Option<&[u64]>,
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    ratios: &MoveRatios,
+    alloc: AllocOptions,
+) -> SweepOutcome {
     pin_fixed(prior, state);
     let table = ComponentTable::new(state);
-    let mut alloc = allocate_with(x, &table, key, index, alloc);
+    let mut alloc = match counts {
+        Some(c) => allocate_weighted(x, c, &table, key, index),
+        None => allocate_with(x, &table, key, index, alloc),
+    };
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
         moves = label_moves(&mut alloc.stats, state, ratios, &mut key.label_rng(index));

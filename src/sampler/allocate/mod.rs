@@ -12,7 +12,8 @@
 //! - [`reference`]: the straightforward loop, the yardstick for tests;
 //! - [`blocked`]: the fast kernel (structure-of-arrays tiles, [`fastexp`]);
 //! - [`dispatch`]: the instruction set chosen at run time;
-//! - [`parallel`]: blocks split over threads.
+//! - [`parallel`]: blocks split over threads;
+//! - [`weighted`]: rows with integer frequency weights (reference arithmetic).
 
 pub mod blocked;
 pub mod dispatch;
@@ -20,11 +21,13 @@ pub mod fastexp;
 mod parallel;
 pub mod reference;
 mod types;
+pub mod weighted;
 
 pub use dispatch::{ExpKind, Simd};
 pub use parallel::thread_split;
 pub use reference::{allocate_reference, loglik_reference};
 pub use types::{Allocation, ComponentTable, SuffStats, BLOCK};
+pub use weighted::{allocate_weighted, loglik_weighted};
 
 use crate::sampler::rng::StreamKey;
 
