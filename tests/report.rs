@@ -111,6 +111,40 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
         .text()
         .unwrap()
         .contains("not a substitute for checking the model against the data"));
+
+    // The shape section shows summary.json: one row per number of modes, with its
+    // probability, and the occupied-components table says it is not the number of modes.
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(run.join("summary.json")).unwrap()).unwrap();
+    let modes = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("modes"))
+        .expect("modes table");
+    let rows: Vec<Vec<String>> = modes
+        .descendants()
+        .filter(|n| n.has_tag_name("tr"))
+        .skip(1)
+        .map(|tr| {
+            tr.children()
+                .filter(|c| c.has_tag_name("td"))
+                .map(|td| td.text().unwrap_or("").to_string())
+                .collect()
+        })
+        .collect();
+    let dist = summary["modes"]["distribution"].as_array().unwrap();
+    assert_eq!(rows.len(), dist.len());
+    for (row, d) in rows.iter().zip(dist) {
+        assert_eq!(row[0], d["count"].as_u64().unwrap().to_string());
+        let p: f64 = row[1].parse().unwrap();
+        assert!(
+            (p - d["probability"].as_f64().unwrap()).abs() < 5e-4,
+            "{row:?} vs {d}"
+        );
+    }
+    assert!(doc
+        .descendants()
+        .any(|n| n.attribute("id") == Some("functionals")));
+    assert!(html.contains("NOT the number of modes"));
     let _ = std::fs::remove_dir_all(&dir);
 }
 

@@ -19,6 +19,8 @@ pub struct PageParts<'a> {
     pub bands_csv: &'a str,
     /// RUN/config.toml, verbatim.
     pub config_text: &'a str,
+    /// RUN/summary.json, parsed, when the run has one.
+    pub summary: Option<&'a serde_json::Value>,
 }
 
 /// The verdict the banner shows.
@@ -348,6 +350,8 @@ pub fn page(p: &PageParts<'_>) -> String {
     }
     out.push_str("<h2>Bands</h2>\n");
     bands_section(&mut out, p);
+    out.push_str("<h2>Shape of the distribution</h2>\n");
+    super::shape::shape_section(&mut out, p.summary);
     out.push_str("<h2>Traces</h2>\n");
     figure(&mut out, &p.figures.trace, "Per-chain traces of label-invariant quantities (long chains are thinned evenly for drawing).");
     out.push_str("<h2>Rank plots</h2>\n");

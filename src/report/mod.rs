@@ -5,6 +5,7 @@
 pub mod diagnostics_view;
 pub mod encode;
 pub mod html;
+pub mod shape;
 
 use std::path::{Path, PathBuf};
 
@@ -22,12 +23,23 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
     let read = |p: PathBuf| std::fs::read_to_string(&p).map_err(|e| Error::io(&p, e));
     let bands_csv = read(inp.layout.bands_csv())?;
     let config_text = read(inp.layout.config())?;
+    let summary_path = run.join("summary.json");
+    let summary: Option<serde_json::Value> = match std::fs::read_to_string(&summary_path) {
+        Ok(t) => Some(serde_json::from_str(&t).map_err(|e| {
+            Error::input(format!(
+                "{}: unreadable summary: {e}",
+                summary_path.display()
+            ))
+        })?),
+        Err(_) => None,
+    };
     let html = page(&PageParts {
         inputs: &inp,
         figures: &figs,
         diagnostics: diag.as_ref(),
         bands_csv: &bands_csv,
         config_text: &config_text,
+        summary: summary.as_ref(),
     });
     let out = run.join("report.html");
     write_atomic(&out, html.as_bytes())?;
