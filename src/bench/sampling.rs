@@ -11,8 +11,8 @@ use crate::error::{Error, Result};
 use crate::run::Prepared;
 use crate::sampler::rng::StreamKey;
 use crate::sampler::{
-    initial_state, run_chain_with, thread_split, AllocOptions, ChainPlan, Checkpoint, DrawSink,
-    KeptDraw,
+    initial_state, run_chain_opts, thread_split, AllocOptions, ChainPlan, Checkpoint, DrawSink,
+    KeptDraw, SweepOptions,
 };
 use crate::summary::linspace;
 
@@ -89,7 +89,11 @@ pub fn run_sampling(prep: &Prepared, threads: usize) -> Result<SamplingResult> {
                     grid: grid.clone(),
                     series: vec![Vec::with_capacity(cfg.draws); grid.len()],
                 };
-                let r = run_chain_with(x, &prep.prior, &key, plan, start, &mut sink, &stop, alloc)
+                let opts = SweepOptions {
+                    alloc,
+                    ..SweepOptions::default()
+                };
+                let r = run_chain_opts(x, &prep.prior, &key, plan, start, &mut sink, &stop, &opts)
                     .map(|_| sink.series);
                 if let Ok(mut slot) = slots[i].lock() {
                     *slot = Some(r);

@@ -16,7 +16,8 @@ use super::prepare::Prepared;
 use crate::error::{Error, Result};
 use crate::sampler::rng::StreamKey;
 use crate::sampler::{
-    initial_state, run_chain_counts, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
+    initial_state, run_chain_opts, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
+    SweepOptions,
 };
 use crate::store::{
     read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
@@ -312,17 +313,11 @@ fn run_one(
     };
     bar.set_position(start.sweeps_done);
     writer = writer.with_progress(bar);
-    let counts = prep.data.counts.as_deref();
-    let stop_kind = run_chain_counts(
-        x,
-        counts,
-        &prep.prior,
-        &key,
-        plan,
-        start,
-        &mut writer,
-        stop,
+    let opts = SweepOptions {
         alloc,
-    )?;
+        counts: prep.data.counts.as_deref(),
+        ..SweepOptions::default()
+    };
+    let stop_kind = run_chain_opts(x, &prep.prior, &key, plan, start, &mut writer, stop, &opts)?;
     Ok((stop_kind, writer.draws_written()))
 }

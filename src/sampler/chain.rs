@@ -10,10 +10,9 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use serde::{Deserialize, Serialize};
 
-use super::allocate::{loglik_weighted, loglik_with, AllocOptions, ComponentTable};
-use super::label_moves::EXACT;
+use super::allocate::{loglik_weighted, loglik_with, ComponentTable};
 use super::rng::StreamKey;
-use super::sweep::sweep_counts;
+use super::sweep::{sweep_opts, SweepOptions};
 use crate::error::Result;
 use crate::model::{Prior, State};
 
@@ -82,22 +81,14 @@ pub fn run_chain(
     sink: &mut dyn DrawSink,
     stop: &AtomicBool,
 ) -> Result<ChainStop> {
-    run_chain_with(
-        x,
-        prior,
-        key,
-        plan,
-        start,
-        sink,
-        stop,
-        AllocOptions::default(),
-    )
+    let opts = SweepOptions::default();
+    run_chain_opts(x, prior, key, plan, start, sink, stop, &opts)
 }
 
-/// [`run_chain`] with explicit allocation options (threads per chain); the draws do not
-/// depend on them.
+/// [`run_chain`] with explicit [`SweepOptions`] (allocation threads, frequency weights);
+/// the draws do not depend on the thread count.
 #[allow(clippy::too_many_arguments)]
-pub fn run_chain_with(
+pub fn run_chain_opts(
     x: &[f64],
     prior: &Prior,
     key: &StreamKey,
@@ -105,24 +96,7 @@ pub fn run_chain_with(
     start: Checkpoint,
     sink: &mut dyn DrawSink,
     stop: &AtomicBool,
-    alloc: AllocOptions,
-) -> Result<ChainStop> {
-    run_chain_counts(x, None, prior, key, plan, start, sink, stop, alloc)
-}
-
-/// [`run_chain_with`] for rows with integer frequency weights `counts` (one per row of
-/// `x`; `None`: every row counts once).
-#[allow(clippy::too_many_arguments)]
-pub fn run_chain_counts(
-    x: &[f64],
-    counts: Option<&[u64]>,
-    prior: &Prior,
-    key: &StreamKey,
-    plan: ChainPlan,
-    start: Checkpoint,
-    sink: &mut dyn DrawSink,
-    stop: &AtomicBool,
-    alloc: AllocOptions,
+    opts: &SweepOptions<'_>,
 ) -> Result<ChainStop> {
     let Checkpoint {
         sweeps_done,
@@ -142,7 +116,7 @@ pub fn run_chain_counts(
             return Ok(ChainStop::Interrupted { sweeps_done: t });
         }
         let previous = pending_occupied.take().map(|occ| (occ, state.clone()));
-        let out = sweep_counts(x, counts, prior, &mut state, key, t + 1, &EXACT, alloc);
+        let out = sweep_opts(x, prior, &mut state, key, t + 1, opts);
         if let Some((occupied, prev_state)) = previous {
             sink.draw(KeptDraw {
                 iteration: t,
@@ -164,9 +138,9 @@ pub fn run_chain_counts(
     }
     if let Some(occupied) = pending_occupied.take() {
         let table = ComponentTable::new(&state);
-        let ll = match counts {
+        let ll = match opts.counts {
             Some(c) => loglik_weighted(x, c, &table),
-            None => loglik_with(x, &table, alloc),
+            None => loglik_with(x, &table, opts.alloc),
         };
         sink.draw(KeptDraw {
             iteration: t,

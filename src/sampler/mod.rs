@@ -22,10 +22,7 @@ mod sweep;
 pub mod weights;
 
 pub use allocate::{thread_split, AllocOptions, ComponentTable, SuffStats};
-pub use chain::{
-    run_chain, run_chain_counts, run_chain_with, ChainPlan, ChainStop, Checkpoint, DrawSink,
-    KeptDraw,
-};
+pub use chain::{run_chain, run_chain_opts, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};
 pub use init::initial_state;
 pub use label_moves::{MoveRatios, MoveTally};
-pub use sweep::{sweep, sweep_alloc, sweep_counts, sweep_with, SweepOutcome};
+pub use sweep::{sweep, sweep_opts, sweep_with, SweepOptions, SweepOutcome};

@@ -23,6 +23,29 @@ pub struct SweepOutcome {
     pub moves: MoveTally,
 }
 
+/// How a sweep runs beyond the model: none of these change what it samples from.
+#[derive(Debug, Clone, Copy)]
+pub struct SweepOptions<'a> {
+    /// Acceptance ratios of the label moves; only the joint-distribution test passes
+    /// anything but [`EXACT`].
+    pub ratios: &'a MoveRatios,
+    /// Threads and instruction set of the allocation; the draws do not depend on them.
+    pub alloc: AllocOptions,
+    /// Integer frequency weights, one per row of `x` (`None`: every row counts once, the
+    /// fast path).
+    pub counts: Option<&'a [u64]>,
+}
+
+impl Default for SweepOptions<'_> {
+    fn default() -> Self {
+        SweepOptions {
+            ratios: &EXACT,
+            alloc: AllocOptions::default(),
+            counts: None,
+        }
+    }
+}
+
 /// Advances `state` by one sweep numbered `index` (from 1), allocating on one thread.
 pub fn sweep(
     x: &[f64],
@@ -31,11 +54,10 @@ pub fn sweep(
     key: &StreamKey,
     index: u64,
 ) -> SweepOutcome {
-    sweep_with(x, prior, state, key, index, &EXACT)
+    sweep_opts(x, prior, state, key, index, &SweepOptions::default())
 }
 
-/// [`sweep`] with the label moves accepted by `ratios`; only the joint-distribution test
-/// passes anything but the exact ratios.
+/// [`sweep`] with the label moves accepted by `ratios` (joint-distribution tests).
 pub fn sweep_with(
     x: &[f64],
     prior: &Prior,
@@ -44,45 +66,36 @@ pub fn sweep_with(
     index: u64,
     ratios: &MoveRatios,
 ) -> SweepOutcome {
-    sweep_alloc(x, prior, state, key, index, ratios, AllocOptions::default())
+    let opts = SweepOptions {
+        ratios,
+        ..SweepOptions::default()
+    };
+    sweep_opts(x, prior, state, key, index, &opts)
 }
 
-/// [`sweep_with`] with explicit allocation options (threads for the blocks); the result
-/// does not depend on `alloc.threads` or `alloc.simd`.
-pub fn sweep_alloc(
+/// [`sweep`] with explicit [`SweepOptions`].
+pub fn sweep_opts(
     x: &[f64],
     prior: &Prior,
     state: &mut State,
     key: &StreamKey,
     index: u64,
-    ratios: &MoveRatios,
-    alloc: AllocOptions,
-) -> SweepOutcome {
-    sweep_counts(x, None, prior, state, key, index, ratios, alloc)
-}
-
-/// [`sweep_alloc`] for rows with integer frequency weights `counts` (one per row of `x`;
-/// `None`: every row counts once, the fast path).
-#[allow(clippy::too_many_arguments)]
-pub fn sweep_counts(
-    x: &[f64],
-    counts: Option<&[u64]>,
-    prior: &Prior,
-    state: &mut State,
-    key: &StreamKey,
-    index: u64,
-    ratios: &MoveRatios,
-    alloc: AllocOptions,
+    opts: &SweepOptions<'_>,
 ) -> SweepOutcome {
     pin_fixed(prior, state);
     let table = ComponentTable::new(state);
-    let mut alloc = match counts {
+    let mut alloc = match opts.counts {
         Some(c) => allocate_weighted(x, c, &table, key, index),
-        None => allocate_with(x, &table, key, index, alloc),
+        None => allocate_with(x, &table, key, index, opts.alloc),
     };
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
-        moves = label_moves(&mut alloc.stats, state, ratios, &mut key.label_rng(index));
+        moves = label_moves(
+            &mut alloc.stats,
+            state,
+            opts.ratios,
+            &mut key.label_rng(index),
+        );
     }
     let mut rng = key.sweep_rng(index);
     update_concentration_given_counts(prior, &alloc.stats.n, state, &mut rng);
