@@ -96,19 +96,19 @@ pub fn load_weighted_from_reader<R: Read>(
         row += 1;
         let line = record.position().map(|p| p.line()).unwrap_or(0);
         let cell = record.get(idx).unwrap_or("").trim();
-        if cell.is_empty() {
+        let empty = |what: String| -> Result<()> {
             match missing {
-                MissingPolicy::Drop => {
-                    dropped += 1;
-                    continue;
-                }
-                MissingPolicy::Error => {
-                    return Err(Error::input(format!(
-                        "{origin}: line {line} (data row {row}): column \"{column}\" is empty; \
-                         set [data] missing = \"drop\" to drop empty cells"
-                    )))
-                }
+                MissingPolicy::Drop => Ok(()),
+                MissingPolicy::Error => Err(Error::input(format!(
+                    "{origin}: line {line} (data row {row}): {what} is empty; \
+                     set [data] missing = \"drop\" to drop rows with empty cells"
+                ))),
             }
+        };
+        if cell.is_empty() {
+            empty(format!("column \"{column}\""))?;
+            dropped += 1;
+            continue;
         }
         let v: f64 = cell.parse().map_err(|_| {
             Error::input(format!(
@@ -124,18 +124,9 @@ pub fn load_weighted_from_reader<R: Read>(
         if let (Some(wi), Some(wname)) = (widx, weights) {
             let wcell = record.get(wi).unwrap_or("").trim();
             if wcell.is_empty() {
-                match missing {
-                    MissingPolicy::Drop => {
-                        dropped += 1;
-                        continue;
-                    }
-                    MissingPolicy::Error => {
-                        return Err(Error::input(format!(
-                            "{origin}: line {line} (data row {row}): weights column \"{wname}\" is empty; \
-                             set [data] missing = \"drop\" to drop rows with empty cells"
-                        )))
-                    }
-                }
+                empty(format!("weights column \"{wname}\""))?;
+                dropped += 1;
+                continue;
             }
             let c: u64 = wcell
                 .strip_prefix('+')

@@ -34,6 +34,20 @@ pub fn terms(x: f64, t: &ComponentTable, p: &mut [f64]) -> (f64, f64) {
     (m, s)
 }
 
+/// The component whose cumulative share of `p` first exceeds `u` (a uniform on
+/// [0, Σp)); the last one if rounding leaves `u` beyond the running sum.
+#[inline]
+pub fn pick(p: &[f64], u: f64) -> usize {
+    let mut acc = 0.0;
+    for (j, &pj) in p.iter().enumerate() {
+        acc += pj;
+        if u < acc {
+            return j;
+        }
+    }
+    p.len() - 1
+}
+
 /// Draws z_i for every observation and returns the sufficient statistics.
 pub fn allocate_reference(
     x: &[f64],
@@ -48,23 +62,12 @@ pub fn allocate_reference(
     let mut block_stats = SuffStats::zeros(k);
     for (b, chunk) in x.chunks(BLOCK).enumerate() {
         let mut rng = key.block_rng(sweep, b as u64);
-        block_stats.n.iter_mut().for_each(|v| *v = 0);
-        block_stats.sum.iter_mut().for_each(|v| *v = 0.0);
-        block_stats.sumsq.iter_mut().for_each(|v| *v = 0.0);
+        block_stats.clear();
         let mut block_ll = 0.0;
         for &xi in chunk {
             let (m, s) = terms(xi, table, &mut p);
             block_ll += m + s.ln();
-            let u = rng.random::<f64>() * s;
-            let mut acc = 0.0;
-            let mut pick = k - 1;
-            for (j, &pj) in p.iter().enumerate() {
-                acc += pj;
-                if u < acc {
-                    pick = j;
-                    break;
-                }
-            }
+            let pick = pick(&p, rng.random::<f64>() * s);
             block_stats.n[pick] += 1;
             block_stats.sum[pick] += xi;
             block_stats.sumsq[pick] += xi * xi;

@@ -9,7 +9,7 @@
 
 use rand::Rng;
 
-use super::reference::terms;
+use super::reference::{pick, terms};
 use super::types::{Allocation, ComponentTable, SuffStats, BLOCK};
 use crate::sampler::rng::StreamKey;
 
@@ -38,17 +38,7 @@ pub fn allocate_weighted(
             block_ll += ci as f64 * (m + s.ln());
             picks.iter_mut().for_each(|v| *v = 0);
             for _ in 0..ci {
-                let u = rng.random::<f64>() * s;
-                let mut acc = 0.0;
-                let mut pick = k - 1;
-                for (j, &pj) in p.iter().enumerate() {
-                    acc += pj;
-                    if u < acc {
-                        pick = j;
-                        break;
-                    }
-                }
-                picks[pick] += 1;
+                picks[pick(&p, rng.random::<f64>() * s)] += 1;
             }
             for (j, &mj) in picks.iter().enumerate() {
                 if mj > 0 {
