@@ -119,6 +119,24 @@ fn variants() -> Vec<Variant> {
             prior: "",
             sampler: "label_moves = true",
         },
+        Variant {
+            label: "collapsed dirichlet d=1 K=10",
+            model: "weights = \"dirichlet\"",
+            prior: "",
+            sampler: "allocation = \"collapsed\"",
+        },
+        Variant {
+            label: "collapsed dirichlet d~G(10,10K) K=10",
+            model: "weights = \"dirichlet\"",
+            prior: "delta_prior = \"gamma\"",
+            sampler: "allocation = \"collapsed\"",
+        },
+        Variant {
+            label: "collapsed stick K=25 moves",
+            model: "weights = \"stick-breaking\"",
+            prior: "",
+            sampler: "allocation = \"collapsed\"",
+        },
     ]
 }
 

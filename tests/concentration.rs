@@ -36,6 +36,7 @@ fn prior(shape: f64, rate: f64, k: usize) -> Prior {
         var_scale: VarScale::Fixed(1.0),
         concentration: Concentration::Gamma { shape, rate },
         label_moves: true,
+        collapsed: false,
     }
 }
 

@@ -39,12 +39,20 @@ const ALPHA: f64 = 0.001;
 /// Proper priors with hyperpriors on, in standard units. var_shape 4 keeps the fourth
 /// moments of σ² (hence the variances of the test functions) finite.
 fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
+    prior_with(kernel, weights, false)
+}
+
+/// [`prior`] with the collapsed allocation scan on or off; with it on, the stick-breaking
+/// sweep also runs its label moves (the count-based ones of the collapsed sweep).
+fn prior_with(kernel: Kernel, weights: WeightsKind, collapsed: bool) -> Prior {
     Prior {
         kernel,
         weights,
         components: 3,
-        // The label moves have their own joint-distribution test (tests/geweke_label_moves.rs).
-        label_moves: false,
+        // The conditional sweep's label moves have their own joint-distribution test
+        // (tests/geweke_label_moves.rs).
+        label_moves: collapsed && weights == WeightsKind::StickBreaking,
+        collapsed,
         centre: 0.0,
         centre_sd: 1.5,
         centre_shrink: 0.5,
@@ -83,6 +91,7 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
         sweep(x, prior, state, key, t);
         return;
     }
+
     // Same streams and order as src/sampler/sweep.rs.
     let alloc = allocate(x, &ComponentTable::new(state), key, t);
     let mut rng = key.sweep_rng(t);
@@ -227,12 +236,17 @@ const COMBOS: [(Kernel, WeightsKind); 4] = [
 ];
 
 fn check_combo(kernel: Kernel, weights: WeightsKind, m: usize, seed: u64) {
-    let p = prior(kernel, weights);
-    let zs = geweke_z(&p, m, seed, Kernelised::Production);
+    check_prior(&prior(kernel, weights), m, seed);
+}
+
+fn check_prior(p: &Prior, m: usize, seed: u64) {
+    let (kernel, weights) = (p.kernel, p.weights);
+    let zs = geweke_z(p, m, seed, Kernelised::Production);
     let (worst, crit) = verdict(&zs);
     assert!(
         worst < crit,
-        "{kernel:?} x {weights:?}: Geweke test rejects (max |z| {worst:.2} >= {crit:.2}): {zs:?}"
+        "{kernel:?} x {weights:?} (collapsed: {}): Geweke test rejects (max |z| {worst:.2} >= {crit:.2}): {zs:?}",
+        p.collapsed
     );
 }
 
@@ -307,6 +321,17 @@ fn geweke_rejects_wrong_stick_tail() {
             worst > crit,
             "{kernel:?} x stick-breaking: the wrong stick tail went undetected (max |z| {worst:.2} < {crit:.2}): {zs:?}"
         );
+    }
+}
+
+/// The collapsed allocation scan (src/sampler/collapsed.rs), with the count-based label
+/// moves for stick-breaking weights, on every kernel x weight combination. The scan on its
+/// own is checked against the exact allocation posterior, with a fault it must catch, in
+/// tests/collapsed_exact.rs.
+#[test]
+fn geweke_collapsed_all_combinations() {
+    for (i, (kernel, weights)) in COMBOS.into_iter().enumerate() {
+        check_prior(&prior_with(kernel, weights, true), M_FAST, 41 + i as u64);
     }
 }
 

@@ -38,6 +38,7 @@ fn prior(kernel: Kernel) -> Prior {
             rate: 2.0,
         },
         label_moves: true,
+        collapsed: false,
     }
 }
 

@@ -85,6 +85,7 @@ fn pinned_prior(k: usize, var: f64) -> Prior {
         weights: WeightsKind::Dirichlet,
         components: k,
         label_moves: false,
+        collapsed: false,
         centre: 0.0,
         centre_sd: 100.0,
         centre_shrink: 1.0,

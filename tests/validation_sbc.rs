@@ -37,6 +37,7 @@ pub fn combos() -> Vec<(&'static str, Prior)> {
         components: 3,
         // As in production: the label moves run for stick-breaking weights.
         label_moves: true,
+        collapsed: false,
         centre: 0.0,
         centre_sd: 1.5,
         centre_shrink: 0.5,

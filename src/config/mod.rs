@@ -9,7 +9,7 @@ pub mod raw;
 mod resolve;
 mod template;
 
-pub use raw::{HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
+pub use raw::{AllocationKind, HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
 pub use resolve::{
     check_chain_ids, check_levels as resolve_check_levels, default_components, parse_config_file,
     parse_config_str, resolve, PriorValues, RunConfig,

@@ -24,6 +24,16 @@ pub enum WeightsKind {
     StickBreaking,
 }
 
+/// How the sweep updates the allocations.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum AllocationKind {
+    /// z_i given the weights and component parameters, all i at once (the fast kernel).
+    Conditional,
+    /// That, then one scan of z_i given z_−i with weights and parameters integrated out.
+    Collapsed,
+}
+
 /// Whether a hyperparameter is held fixed or given a Gamma prior.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
@@ -121,6 +131,9 @@ pub struct SamplerSection {
     pub chain_ids: Option<Vec<i64>>,
     /// Label-switching moves for stick-breaking weights (on by default).
     pub label_moves: Option<bool>,
+    /// "conditional" or "collapsed" (see docs/model.md).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub allocation: Option<AllocationKind>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -65,6 +65,7 @@ pub struct RunConfig {
     pub thin: usize,
     pub seed: u64,
     pub label_moves: bool,
+    pub allocation: AllocationKind,
     pub grid_from: f64,
     pub grid_to: f64,
     pub grid_points: usize,
@@ -392,6 +393,7 @@ pub fn resolve(
         thin,
         seed,
         label_moves: s.label_moves.unwrap_or(true),
+        allocation: s.allocation.unwrap_or(AllocationKind::Conditional),
         grid_from,
         grid_to,
         grid_points: points,
@@ -509,6 +511,7 @@ impl RunConfig {
                     .as_ref()
                     .map(|v| v.iter().map(|&i| i as i64).collect()),
                 label_moves: (!dir).then_some(self.label_moves),
+                allocation: Some(self.allocation),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

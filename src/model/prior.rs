@@ -42,6 +42,9 @@ pub struct Prior {
     pub concentration: Concentration,
     /// Whether the sweep runs the label-switching moves (stick-breaking weights only).
     pub label_moves: bool,
+    /// Whether the sweep adds a collapsed allocation scan (`[sampler] allocation`).
+    #[serde(default)]
+    pub collapsed: bool,
 }
 
 impl Prior {
@@ -84,6 +87,7 @@ impl Prior {
             var_scale,
             concentration,
             label_moves: cfg.label_moves,
+            collapsed: cfg.allocation == crate::config::AllocationKind::Collapsed,
         }
     }
 

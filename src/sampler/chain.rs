@@ -10,7 +10,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use serde::{Deserialize, Serialize};
 
-use super::allocate::{loglik_weighted, loglik_with, ComponentTable};
+use super::allocate::{loglik_reference, loglik_weighted, loglik_with, ComponentTable};
 use super::rng::StreamKey;
 use super::sweep::{sweep_opts, SweepOptions};
 use crate::error::Result;
@@ -140,6 +140,8 @@ pub fn run_chain_opts(
         let table = ComponentTable::new(&state);
         let ll = match opts.counts {
             Some(c) => loglik_weighted(x, c, &table),
+            // The collapsed sweep's first pass uses the reference arithmetic.
+            None if prior.collapsed => loglik_reference(x, &table),
             None => loglik_with(x, &table, opts.alloc),
         };
         sink.draw(KeptDraw {

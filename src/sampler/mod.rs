@@ -7,6 +7,7 @@
 
 pub mod allocate;
 pub mod chain;
+pub mod collapsed;
 // The single full conditionals are public (hidden from the docs) so the joint-distribution
 // tests can rebuild a sweep with one conditional deliberately wrong.
 #[doc(hidden)]

@@ -18,6 +18,8 @@ const SWEEP_STREAM: u64 = u64::MAX;
 /// Block index reserved for the label-switching moves of a sweep (see `label_moves`), so
 /// switching them on or off leaves every other stream as it was.
 const LABEL_STREAM: u64 = u64::MAX - 1;
+/// Block index reserved for the collapsed allocation scan of a sweep (see `collapsed`).
+const COLLAPSED_STREAM: u64 = u64::MAX - 2;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
 
@@ -61,6 +63,11 @@ impl StreamKey {
     /// Generator for the label-switching moves in sweep `sweep`.
     pub fn label_rng(&self, sweep: u64) -> ChaCha8Rng {
         self.rng(sweep, LABEL_STREAM)
+    }
+
+    /// Generator for the collapsed allocation scan in sweep `sweep`.
+    pub fn collapsed_rng(&self, sweep: u64) -> ChaCha8Rng {
+        self.rng(sweep, COLLAPSED_STREAM)
     }
 
     /// Generator for the chain's starting point.

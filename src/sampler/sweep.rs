@@ -2,11 +2,15 @@
 //! concentration given the counts (weights integrated out), weights, component
 //! parameters, hyperparameters.
 
-use super::allocate::{allocate_weighted, allocate_with, AllocOptions, ComponentTable};
+use super::allocate::{
+    allocate_reference_labels, allocate_weighted, allocate_with, AllocOptions, Allocation,
+    ComponentTable,
+};
+use super::collapsed::collapsed_scan;
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
-use super::label_moves::{label_moves, MoveRatios, MoveTally, EXACT};
+use super::label_moves::{label_moves, label_moves_counts, MoveRatios, MoveTally, EXACT};
 use super::rng::StreamKey;
 use super::weights::update_weights;
 use crate::config::WeightsKind;
@@ -86,10 +90,17 @@ pub fn sweep_opts(
     let table = ComponentTable::new(state);
     let mut alloc = match opts.counts {
         Some(c) => allocate_weighted(x, c, &table, key, index),
+        None if prior.collapsed => collapsed_allocation(x, prior, state, &table, key, index),
         None => allocate_with(x, &table, key, index, opts.alloc),
     };
     let mut moves = MoveTally::default();
-    if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
+    if prior.label_moves && prior.weights == WeightsKind::StickBreaking && prior.collapsed {
+        moves = label_moves_counts(
+            &mut alloc.stats,
+            state.concentration,
+            &mut key.label_rng(index),
+        );
+    } else if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
         moves = label_moves(
             &mut alloc.stats,
             state,
@@ -107,5 +118,25 @@ pub fn sweep_opts(
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
         moves,
+    }
+}
+
+/// The allocation drawn given the parameters (reference arithmetic, recording each
+/// observation's component), then one collapsed scan; the log-likelihood is that of the
+/// state the sweep started from, as on the fast path.
+fn collapsed_allocation(
+    x: &[f64],
+    prior: &Prior,
+    state: &State,
+    table: &ComponentTable,
+    key: &StreamKey,
+    index: u64,
+) -> Allocation {
+    let mut z = vec![0u32; x.len()];
+    let first = allocate_reference_labels(x, table, key, index, Some(&mut z));
+    let stats = collapsed_scan(x, &mut z, prior, state, &mut key.collapsed_rng(index));
+    Allocation {
+        stats,
+        loglik: first.loglik,
     }
 }

@@ -25,7 +25,7 @@ pub mod weighted;
 
 pub use dispatch::{ExpKind, Simd};
 pub use parallel::thread_split;
-pub use reference::{allocate_reference, loglik_reference};
+pub use reference::{allocate_reference, allocate_reference_labels, loglik_reference};
 pub use types::{Allocation, ComponentTable, SuffStats, BLOCK};
 pub use weighted::{allocate_weighted, loglik_weighted};
 

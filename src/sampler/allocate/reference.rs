@@ -55,6 +55,18 @@ pub fn allocate_reference(
     key: &StreamKey,
     sweep: u64,
 ) -> Allocation {
+    allocate_reference_labels(x, table, key, sweep, None)
+}
+
+/// [`allocate_reference`] that also writes each observation's component into `labels`
+/// (same streams, same draws), for moves that need the allocations themselves.
+pub fn allocate_reference_labels(
+    x: &[f64],
+    table: &ComponentTable,
+    key: &StreamKey,
+    sweep: u64,
+    mut labels: Option<&mut [u32]>,
+) -> Allocation {
     let k = table.k();
     let mut stats = SuffStats::zeros(k);
     let mut loglik = 0.0;
@@ -64,10 +76,13 @@ pub fn allocate_reference(
         let mut rng = key.block_rng(sweep, b as u64);
         block_stats.clear();
         let mut block_ll = 0.0;
-        for &xi in chunk {
+        for (i, &xi) in chunk.iter().enumerate() {
             let (m, s) = terms(xi, table, &mut p);
             block_ll += m + s.ln();
             let pick = pick(&p, rng.random::<f64>() * s);
+            if let Some(l) = labels.as_deref_mut() {
+                l[b * BLOCK + i] = pick as u32;
+            }
             block_stats.n[pick] += 1;
             block_stats.sum[pick] += xi;
             block_stats.sumsq[pick] += xi * xi;

@@ -1,0 +1,454 @@
+//! The collapsed allocation scan: every z_i in turn is redrawn from
+//! p(z_i | z_−i, x, hyperparameters), with the weights and the component parameters
+//! integrated out (Neal 2000, "Markov chain sampling methods for Dirichlet process mixture
+//! models", JCGS 9:249–265, algorithm 3, here for a finite or truncated prior).
+//!
+//! The blocked sweep draws every z_i given the parameters and then the parameters given
+//! every z_i; when two components overlap, that pair of blocks moves the split of mass
+//! between them slowly. Integrating the parameters out lets one observation move while the
+//! others hold their places, which is what the density at points between overlapping
+//! components needs (docs/model.md, "Collapsed allocation scan").
+//!
+//! The scan conditions on what it does not integrate out: the variance scale b and the
+//! concentration (both kernels), and the common σ² (location kernel). It starts from
+//! allocations drawn given the current parameters, so after it the parameters are stale
+//! and the sweep redraws all of them (weights, means, variances) given the new
+//! allocations; that sequence leaves the posterior invariant.
+//!
+//! Predictive of one more observation in component k with n_k members, sum S1, sum of
+//! squares S2 (the component's own posterior, data in standard units):
+//! - location kernel, μ_k ~ N(m, s²), common σ²: v = 1/(1/s² + n_k/σ²),
+//!   c = v (m/s² + S1/σ²); x ~ N(c, σ² + v);
+//! - location-scale kernel, normal-inverse-gamma (κ, m, a, b): κ_n = κ + n_k,
+//!   m_n = (κ m + S1)/κ_n, a_n = a + n_k/2, b_n = b + SS/2 + κ n_k (x̄ − m)²/(2κ_n);
+//!   x ~ Student-t with 2a_n degrees of freedom, location m_n, scale² b_n(κ_n + 1)/(a_n κ_n)
+//!   (Murphy 2007, "Conjugate Bayesian analysis of the Gaussian distribution", §7.6).
+//!
+//! Prior weight of component k given the other allocations n (i left out):
+//! - Dirichlet(δ): n_k + δ;
+//! - truncated stick-breaking, v_j ~ Beta(1, α), with G_k = Σ_{j ≥ k} n_j:
+//!   E[w_k | n] = (1 + n_k)/(1 + α + G_k) Π_{j<k} (α + G_{j+1})/(1 + α + G_j) for k < K,
+//!   and Π_{j<K} (α + G_{j+1})/(1 + α + G_j) for k = K (v_K = 1).
+
+use std::cell::RefCell;
+
+use rand::Rng;
+use statrs::function::gamma::ln_gamma;
+
+use super::allocate::reference::pick;
+use super::allocate::SuffStats;
+use crate::config::{Kernel, WeightsKind};
+use crate::dist::LN_SQRT_2PI;
+use crate::model::{Prior, State};
+
+/// Per-component terms of the posterior predictive: ln p(x) = c − g(h (x − loc)²), with
+/// g(q) = q (normal) or g(q) = power · ln(1 + q) (Student-t).
+struct Predictive {
+    /// Fault injection for the joint-distribution test (see [`collapsed_scan_plug_in`]).
+    plug_in: bool,
+    c: Vec<f64>,
+    loc: Vec<f64>,
+    h: Vec<f64>,
+    power: Vec<f64>,
+}
+
+impl Predictive {
+    fn new(k: usize) -> Self {
+        Predictive {
+            plug_in: false,
+            c: vec![0.0; k],
+            loc: vec![0.0; k],
+            h: vec![0.0; k],
+            power: vec![0.0; k],
+        }
+    }
+
+    fn save(&self, j: usize) -> [f64; 4] {
+        [self.c[j], self.loc[j], self.h[j], self.power[j]]
+    }
+
+    fn restore(&mut self, j: usize, v: [f64; 4]) {
+        [self.c[j], self.loc[j], self.h[j], self.power[j]] = v;
+    }
+
+    /// Recomputes component `j` from its statistics.
+    fn refresh(&mut self, j: usize, stats: &SuffStats, prior: &Prior, state: &State) {
+        let nk = stats.n[j] as f64;
+        match prior.kernel {
+            Kernel::Location => {
+                let sigma2 = state.var[0];
+                let prior_prec = 1.0 / (prior.centre_sd * prior.centre_sd);
+                let prec = prior_prec + nk / sigma2;
+                let v = 1.0 / prec;
+                let pv = if self.plug_in { sigma2 } else { sigma2 + v };
+                self.loc[j] = v * (prior.centre * prior_prec + stats.sum[j] / sigma2);
+                self.c[j] = -0.5 * pv.ln() - LN_SQRT_2PI;
+                self.h[j] = 0.5 / pv;
+            }
+            Kernel::LocationScale => {
+                let (m, kappa, a) = (prior.centre, prior.centre_shrink, prior.var_shape);
+                let (xbar, ss) = if stats.n[j] > 0 {
+                    let xbar = stats.sum[j] / nk;
+                    (xbar, (stats.sumsq[j] - nk * xbar * xbar).max(0.0))
+                } else {
+                    (0.0, 0.0)
+                };
+                let kn = kappa + nk;
+                let an = a + 0.5 * nk;
+                let bn =
+                    state.var_scale + 0.5 * ss + kappa * nk * (xbar - m) * (xbar - m) / (2.0 * kn);
+                // ν s² = 2 a_n · b_n (κ_n + 1)/(a_n κ_n) = 2 b_n (κ_n + 1)/κ_n.
+                let nu_s2 = if self.plug_in {
+                    2.0 * bn
+                } else {
+                    2.0 * bn * (kn + 1.0) / kn
+                };
+                self.loc[j] = (kappa * m + nk * xbar) / kn;
+                self.c[j] =
+                    half_step_ln_gamma(a, stats.n[j] as usize) - 0.5 * nu_s2.ln() - LN_SQRT_2PI
+                        + 0.5 * std::f64::consts::LN_2;
+                self.h[j] = 1.0 / nu_s2;
+                self.power[j] = an + 0.5;
+            }
+        }
+    }
+
+    #[inline]
+    fn log_pdf(&self, kernel: Kernel, j: usize, x: f64) -> f64 {
+        let d = x - self.loc[j];
+        let q = self.h[j] * d * d;
+        match kernel {
+            Kernel::Location => self.c[j] - q,
+            Kernel::LocationScale => self.c[j] - self.power[j] * q.ln_1p(),
+        }
+    }
+}
+
+thread_local! {
+    /// D[n] = ln Γ(a + (n + 1)/2) − ln Γ(a + n/2) for the shape a it was built for.
+    static HALF_STEP: RefCell<(f64, Vec<f64>)> = const { RefCell::new((f64::NAN, Vec::new())) };
+}
+
+/// ln Γ(a + (n + 1)/2) − ln Γ(a + n/2), from a table per thread that is extended as needed
+/// by the recurrence D[n + 1] = ln(a + n/2) − D[n] (from Γ(y + 1) = y Γ(y)), started at
+/// D[0] from statrs' ln Γ. The recurrence is well conditioned (D[n] ≈ ½ ln(a + n/2));
+/// tested against direct ln Γ differences below.
+fn half_step_ln_gamma(a: f64, n: usize) -> f64 {
+    HALF_STEP.with(|cell| {
+        let mut t = cell.borrow_mut();
+        if t.0.to_bits() != a.to_bits() {
+            *t = (a, vec![ln_gamma(a + 0.5) - ln_gamma(a)]);
+        }
+        while t.1.len() <= n {
+            let m = t.1.len() - 1;
+            let next = (a + 0.5 * m as f64).ln() - t.1[m];
+            t.1.push(next);
+        }
+        t.1[n]
+    })
+}
+
+/// Logarithms the stick-breaking prior weights need during one scan (α fixed):
+/// ln(1 + g), ln(1 + α + g) and ln(α + g) for g = 0..=N.
+struct StickLogs {
+    ln1: Vec<f64>,
+    ln1a: Vec<f64>,
+    lna: Vec<f64>,
+}
+
+impl StickLogs {
+    fn new(alpha: f64, n: usize) -> Self {
+        let g = |f: &dyn Fn(f64) -> f64| (0..=n).map(|v| f(v as f64).ln()).collect();
+        StickLogs {
+            ln1: g(&|v| 1.0 + v),
+            ln1a: g(&|v| 1.0 + alpha + v),
+            lna: g(&|v| alpha + v),
+        }
+    }
+}
+
+/// ln of the prior weight of each component given the counts `n` (the observation being
+/// moved left out), written into `out`.
+fn log_prior_weights(
+    weights: WeightsKind,
+    concentration: f64,
+    n: &[u64],
+    logs: Option<&StickLogs>,
+    out: &mut [f64],
+) {
+    match (weights, logs) {
+        (WeightsKind::StickBreaking, Some(l)) => {
+            let k = n.len();
+            let mut g = n.iter().sum::<u64>() as usize;
+            let mut acc = 0.0;
+            for j in 0..k {
+                if j + 1 == k {
+                    out[j] = acc;
+                } else {
+                    let denom = l.ln1a[g];
+                    out[j] = acc + l.ln1[n[j] as usize] - denom;
+                    g -= n[j] as usize;
+                    acc += l.lna[g] - denom;
+                }
+            }
+        }
+        _ => {
+            for (o, &c) in out.iter_mut().zip(n) {
+                *o = (c as f64 + concentration).ln();
+            }
+        }
+    }
+}
+
+/// Counts, sums and sums of squares of `x` under the allocations `z`, summed in
+/// observation order.
+pub fn stats_from_labels(x: &[f64], z: &[u32], k: usize) -> SuffStats {
+    let mut s = SuffStats::zeros(k);
+    for (&xi, &zi) in x.iter().zip(z) {
+        let j = zi as usize;
+        s.n[j] += 1;
+        s.sum[j] += xi;
+        s.sumsq[j] += xi * xi;
+    }
+    s
+}
+
+/// One collapsed scan over every observation in order, updating the allocations `z` and
+/// returning their statistics (recomputed from `z`, so rounding from the running
+/// updates does not carry over). `state` supplies b, the concentration and (location
+/// kernel) σ²; its weights and component parameters are not read.
+pub fn collapsed_scan<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    prior: &Prior,
+    state: &State,
+    rng: &mut R,
+) -> SuffStats {
+    scan(x, z, prior, state, rng, false)
+}
+
+/// [`collapsed_scan`] with a deliberate fault for the joint-distribution test: the
+/// predictive leaves out the uncertainty of the component mean (σ² instead of σ² + v;
+/// b_n/a_n instead of b_n (κ_n + 1)/(a_n κ_n)), a plug-in predictive.
+#[doc(hidden)]
+pub fn collapsed_scan_plug_in<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    prior: &Prior,
+    state: &State,
+    rng: &mut R,
+) -> SuffStats {
+    scan(x, z, prior, state, rng, true)
+}
+
+fn scan<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    prior: &Prior,
+    state: &State,
+    rng: &mut R,
+    fault_plug_in: bool,
+) -> SuffStats {
+    let k = state.k();
+    let mut stats = stats_from_labels(x, z, k);
+    let mut pred = Predictive::new(k);
+    pred.plug_in = fault_plug_in;
+    for j in 0..k {
+        pred.refresh(j, &stats, prior, state);
+    }
+    let mut lw = vec![0.0; k];
+    let mut p = vec![0.0; k];
+    let dirichlet = prior.weights == WeightsKind::Dirichlet;
+    let logs = (!dirichlet).then(|| StickLogs::new(state.concentration, x.len()));
+    if dirichlet {
+        log_prior_weights(prior.weights, state.concentration, &stats.n, None, &mut lw);
+    }
+    for (i, &xi) in x.iter().enumerate() {
+        let old = z[i] as usize;
+        let saved = pred.save(old);
+        stats.n[old] -= 1;
+        if stats.n[old] == 0 {
+            stats.sum[old] = 0.0;
+            stats.sumsq[old] = 0.0;
+        } else {
+            stats.sum[old] -= xi;
+            stats.sumsq[old] -= xi * xi;
+        }
+        pred.refresh(old, &stats, prior, state);
+        if dirichlet {
+            lw[old] = (stats.n[old] as f64 + state.concentration).ln();
+        } else {
+            log_prior_weights(
+                prior.weights,
+                state.concentration,
+                &stats.n,
+                logs.as_ref(),
+                &mut lw,
+            );
+        }
+        let mut m = f64::NEG_INFINITY;
+        for j in 0..k {
+            let t = lw[j] + pred.log_pdf(prior.kernel, j, xi);
+            p[j] = t;
+            m = m.max(t);
+        }
+        let mut s = 0.0;
+        for pj in p.iter_mut() {
+            *pj = (*pj - m).exp();
+            s += *pj;
+        }
+        let new = pick(&p, rng.random::<f64>() * s);
+        z[i] = new as u32;
+        stats.n[new] += 1;
+        stats.sum[new] += xi;
+        stats.sumsq[new] += xi * xi;
+        if new == old {
+            pred.restore(old, saved);
+        } else {
+            pred.refresh(new, &stats, prior, state);
+        }
+        if dirichlet {
+            lw[new] = (stats.n[new] as f64 + state.concentration).ln();
+        }
+    }
+    stats_from_labels(x, z, k)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::config::{Kernel, WeightsKind};
+    use crate::model::{Concentration, VarScale};
+
+    fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
+        Prior {
+            kernel,
+            weights,
+            components: 4,
+            centre: 0.3,
+            centre_sd: 1.7,
+            centre_shrink: 0.4,
+            var_shape: 2.5,
+            var_scale: VarScale::Fixed(0.8),
+            concentration: Concentration::Fixed(0.7),
+            label_moves: false,
+            collapsed: true,
+        }
+    }
+
+    fn state(k: usize) -> State {
+        State {
+            log_w: vec![-(k as f64).ln(); k],
+            log_v: vec![],
+            log_1mv: vec![],
+            mu: vec![0.0; k],
+            var: vec![1.3; k],
+            concentration: 0.7,
+            var_scale: 0.8,
+        }
+    }
+
+    /// Student-t log density from statrs (location-scale form), the reference for the
+    /// hand-written predictive.
+    #[test]
+    fn student_t_predictive_matches_statrs() {
+        use statrs::distribution::{Continuous, StudentsT};
+        let p = prior(Kernel::LocationScale, WeightsKind::Dirichlet);
+        let s = state(4);
+        let xs = [0.2, -1.1, 0.9, 2.5, 0.4];
+        let stats = stats_from_labels(&xs, &[0, 0, 1, 1, 1], 4);
+        let mut pred = Predictive::new(4);
+        for j in 0..4 {
+            pred.refresh(j, &stats, &p, &s);
+        }
+        for j in 0..3 {
+            let nk = stats.n[j] as f64;
+            let (xbar, ss) = if nk > 0.0 {
+                let xb = stats.sum[j] / nk;
+                (xb, stats.sumsq[j] - nk * xb * xb)
+            } else {
+                (0.0, 0.0)
+            };
+            let kn = p.centre_shrink + nk;
+            let an = p.var_shape + nk / 2.0;
+            let bn = 0.8 + ss / 2.0 + p.centre_shrink * nk * (xbar - p.centre).powi(2) / (2.0 * kn);
+            let mn = (p.centre_shrink * p.centre + nk * xbar) / kn;
+            let scale = (bn * (kn + 1.0) / (an * kn)).sqrt();
+            let t = StudentsT::new(mn, scale, 2.0 * an).unwrap();
+            for x in [-3.0, -0.5, 0.0, 1.2, 4.0] {
+                let got = pred.log_pdf(Kernel::LocationScale, j, x);
+                assert!(
+                    (got - t.ln_pdf(x)).abs() < 1e-12,
+                    "{j} {x}: {got} vs {}",
+                    t.ln_pdf(x)
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn half_step_table_matches_direct_ln_gamma() {
+        for a in [0.3, 2.0, 7.5] {
+            for n in [0usize, 1, 2, 3, 10, 101, 5000, 20001] {
+                let direct = ln_gamma(a + 0.5 * (n + 1) as f64) - ln_gamma(a + 0.5 * n as f64);
+                let got = half_step_ln_gamma(a, n);
+                assert!(
+                    (got - direct).abs() < 1e-10,
+                    "a={a} n={n}: {got} vs {direct}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn normal_predictive_matches_statrs() {
+        use statrs::distribution::{Continuous, Normal};
+        let p = prior(Kernel::Location, WeightsKind::Dirichlet);
+        let s = state(4);
+        let xs = [0.2, -1.1, 0.9];
+        let stats = stats_from_labels(&xs, &[2, 2, 0], 4);
+        let mut pred = Predictive::new(4);
+        for j in 0..4 {
+            pred.refresh(j, &stats, &p, &s);
+        }
+        for j in [0, 1, 2] {
+            let nk = stats.n[j] as f64;
+            let prec = 1.0 / (1.7 * 1.7) + nk / 1.3;
+            let mean = (0.3 / (1.7 * 1.7) + stats.sum[j] / 1.3) / prec;
+            let d = Normal::new(mean, (1.3 + 1.0 / prec).sqrt()).unwrap();
+            for x in [-2.0, 0.1, 3.0] {
+                let got = pred.log_pdf(Kernel::Location, j, x);
+                assert!((got - d.ln_pdf(x)).abs() < 1e-12);
+            }
+        }
+    }
+
+    /// E[w_k | n] for truncated stick-breaking, from the product of Beta means written
+    /// out directly (v_j | n ~ Beta(1 + n_j, α + G_{j+1}); Ishwaran & James 2001).
+    #[test]
+    fn stick_breaking_prior_weights_are_posterior_mean_weights() {
+        let n = [3u64, 0, 5, 1, 2];
+        let alpha = 1.4;
+        let mut out = [0.0; 5];
+        let logs = StickLogs::new(alpha, 11);
+        log_prior_weights(WeightsKind::StickBreaking, alpha, &n, Some(&logs), &mut out);
+        let mut expected = [0.0; 5];
+        let mut rest = 1.0;
+        for j in 0..5 {
+            let tail: u64 = n[j + 1..].iter().sum();
+            if j == 4 {
+                expected[j] = rest;
+            } else {
+                let a = 1.0 + n[j] as f64;
+                let b = alpha + tail as f64;
+                expected[j] = rest * a / (a + b);
+                rest *= b / (a + b);
+            }
+        }
+        let total: f64 = out.iter().map(|v| v.exp()).sum();
+        assert!((total - 1.0).abs() < 1e-12);
+        for j in 0..5 {
+            assert!((out[j].exp() - expected[j]).abs() < 1e-12);
+        }
+    }
+}
