@@ -94,49 +94,22 @@ struct Variant {
 }
 
 fn variants() -> Vec<Variant> {
+    let v = |label, model, prior, sampler| Variant {
+        label,
+        model,
+        prior,
+        sampler,
+    };
+    let (dir, stick) = ("weights = \"dirichlet\"", "weights = \"stick-breaking\"");
+    let (fixed, gamma) = ("delta_prior = \"fixed\"", "delta_prior = \"gamma\"");
+    let (cond, coll) = ("allocation = \"conditional\"", "allocation = \"collapsed\"");
     vec![
-        Variant {
-            label: "dirichlet d=1 K=10",
-            model: "weights = \"dirichlet\"",
-            prior: "",
-            sampler: "",
-        },
-        Variant {
-            label: "dirichlet d~G(10,10K) K=10",
-            model: "weights = \"dirichlet\"",
-            prior: "delta_prior = \"gamma\"",
-            sampler: "",
-        },
-        Variant {
-            label: "stick K=25 no moves",
-            model: "weights = \"stick-breaking\"",
-            prior: "",
-            sampler: "label_moves = false",
-        },
-        Variant {
-            label: "stick K=25 moves",
-            model: "weights = \"stick-breaking\"",
-            prior: "",
-            sampler: "label_moves = true",
-        },
-        Variant {
-            label: "collapsed dirichlet d=1 K=10",
-            model: "weights = \"dirichlet\"",
-            prior: "",
-            sampler: "allocation = \"collapsed\"",
-        },
-        Variant {
-            label: "collapsed dirichlet d~G(10,10K) K=10",
-            model: "weights = \"dirichlet\"",
-            prior: "delta_prior = \"gamma\"",
-            sampler: "allocation = \"collapsed\"",
-        },
-        Variant {
-            label: "collapsed stick K=25 moves",
-            model: "weights = \"stick-breaking\"",
-            prior: "",
-            sampler: "allocation = \"collapsed\"",
-        },
+        v("conditional dirichlet d=1 K=10", dir, fixed, cond),
+        v("conditional dirichlet d~G(10,10K) K=10", dir, gamma, cond),
+        v("conditional stick K=25 moves", stick, "", cond),
+        v("collapsed dirichlet d=1 K=10", dir, fixed, coll),
+        v("defaults: collapsed dirichlet d~G(10,10K) K=10", "", "", ""),
+        v("collapsed stick K=25 moves", stick, "", coll),
     ]
 }
 
@@ -225,7 +198,7 @@ fn run(prep: &Prepared) -> Figures {
         gate_rhat = gate_rhat.max(d.rhat);
         if d.ess_bulk < gate_ess {
             gate_ess = d.ess_bulk;
-            worst = format!("{name} ESS {:.0}", d.ess_bulk);
+            worst = format!("{name} ESS {:.0}; {worst}", d.ess_bulk);
         }
     }
     let mut sorted = ess.clone();

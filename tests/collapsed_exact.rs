@@ -282,3 +282,65 @@ fn moves_p_value(kernel: Kernel, log_prior: fn(f64, &[u64]) -> f64) -> f64 {
         pv
     }
 }
+
+/// Proposals between recorded states of the split–merge chain: it moves in large steps
+/// but rejects often, so its states are thinned to near independence for the test.
+const THIN: usize = 10;
+
+/// Chi-square p-value of the split–merge move alone (one proposal a step, stats kept from
+/// the move's own bookkeeping) against the exact posterior.
+fn split_merge_p_value(p: &Prior, faulty: bool, seed: u64) -> f64 {
+    use mixband::sampler::collapsed::stats_from_labels;
+    use mixband::sampler::split_merge::{split_merge, split_merge_faulty};
+    let s = state();
+    let exact = exact_posterior(p, &s);
+    let mut counts = vec![0u64; exact.len()];
+    let mut z = vec![0u32; X.len()];
+    let mut stats = stats_from_labels(&X, &z, K);
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    let mut accepted = 0;
+    for _ in 0..SCANS / 2 {
+        let t = if faulty {
+            split_merge_faulty(&X, &mut z, &mut stats, p, &s, THIN, &mut rng)
+        } else {
+            split_merge(&X, &mut z, &mut stats, p, &s, THIN, &mut rng)
+        };
+        accepted += t.splits_accepted + t.merges_accepted;
+        counts[encode(&z)] += 1;
+    }
+    let fresh = stats_from_labels(&X, &z, K);
+    assert_eq!(
+        stats.n, fresh.n,
+        "the move's counts drifted from its allocations"
+    );
+    assert!(accepted > 1000, "the move never moved: {accepted}");
+    let e: Vec<f64> = exact.iter().map(|v| v * (SCANS / 2) as f64).collect();
+    let stat: f64 = counts
+        .iter()
+        .zip(&e)
+        .filter(|(_, &e)| e >= 20.0)
+        .map(|(&c, &e)| (c as f64 - e).powi(2) / e)
+        .sum();
+    let cells = e.iter().filter(|&&v| v >= 20.0).count();
+    1.0 - ChiSquared::new((cells - 1) as f64).unwrap().cdf(stat)
+}
+
+/// The split–merge move (src/sampler/split_merge.rs) on its own targets the exact
+/// allocation posterior for every kernel x weights combination; with the label-choice
+/// factors E and 1/(E + 1) left out the same test rejects. The chain moves in large
+/// steps and is autocorrelated, so the test runs at the same strict level as above.
+#[test]
+fn split_merge_targets_the_exact_allocation_posterior() {
+    for (i, (kernel, weights)) in COMBOS.into_iter().enumerate() {
+        let p = prior(kernel, weights);
+        let pv = split_merge_p_value(&p, false, 400 + i as u64);
+        eprintln!("split-merge {kernel:?} x {weights:?}: p = {pv:.3e}");
+        assert!(pv > 1e-4, "{kernel:?} x {weights:?}: p = {pv:.2e}");
+        let pv = split_merge_p_value(&p, true, 500 + i as u64);
+        eprintln!("faulty split-merge {kernel:?} x {weights:?}: p = {pv:.3e}");
+        assert!(
+            pv < 1e-4,
+            "{kernel:?} x {weights:?}: the fault went undetected, p = {pv:.2e}"
+        );
+    }
+}

@@ -5,17 +5,18 @@
 //! evaluates the same mixtures with scipy and the first test checks the two agree.
 //!
 //! For each density, n = 500 observations are simulated (fixed seeds, several replicates)
-//! and fitted with mixband's defaults (location-scale kernel, Dirichlet weights, K = 10)
-//! except one: the Dirichlet concentration is set to δ = 0.1 ([`PRIOR`]). With the current
-//! default δ = 1 the posterior mean is worse than the kernel estimate on densities #1 and #2
-//! (mean ISE ratios 1.52 and 1.53 over 4 replicates of 2000 sweeps; see docs/validation.md
-//! and the ignored test [`marron_wand_with_delta_one`]): a symmetric Dirichlet(1) on 10 components keeps
-//! superfluous components alive and the posterior mean wiggles. Rousseau & Mengersen (2011,
-//! "Asymptotic behaviour of the posterior distribution in overfitted mixture models",
-//! JRSS B 73(5)) show superfluous components empty out when δ < d/2, d the number of
-//! parameters per component (d = 2 here), so δ = 1 sits on the boundary. The default stays
-//! δ = 1 because δ = 0.1 mixes too slowly for default runs to pass the convergence gate
-//! (docs/validation.md, "Finding"); this benchmark therefore pins δ = 0.1.
+//! and fitted with mixband's defaults ([`PRIOR`] adds nothing): location-scale kernel,
+//! Dirichlet weights on K = 10 components with δ ~ Gamma(10, 10 K) (the sparse finite
+//! mixture of Malsiner-Walli, Frühwirth-Schnatter & Grün 2016), collapsed allocation scan
+//! with split–merge. With the earlier default δ = 1 the posterior mean was worse than the
+//! kernel estimate on densities #1 and #2 (mean ISE ratios 1.52 and 1.53; the ignored
+//! test [`marron_wand_with_delta_one`] keeps that finding): a symmetric Dirichlet(1) on 10
+//! components keeps superfluous components alive and the posterior mean wiggles.
+//! Rousseau & Mengersen (2011, "Asymptotic behaviour of the posterior distribution in
+//! overfitted mixture models", JRSS B 73(5)) show superfluous components empty out when
+//! δ < d/2, d the number of parameters per component (d = 2 here), so δ = 1 sits on the
+//! boundary. The sparse prior became the default once split–merge let it mix
+//! (docs/model.md, "Collapsed allocation scan and split–merge").
 //! The integrated squared error of the posterior mean density is compared with that of a
 //! Gaussian kernel estimate at Silverman's rule-of-thumb bandwidth (Silverman 1986,
 //! "Density Estimation for Statistics and Data Analysis", eq. 3.31). Requirement: the
@@ -32,8 +33,8 @@ use validation_support::{
     fit_with_defaults, fixture, floats, ise, kde, linspace, silverman_bandwidth,
 };
 
-/// Prior lines added to the defaults (see the module comment).
-pub const PRIOR: &str = "[prior]\ndirichlet_delta = 0.1\n";
+/// Prior lines added to the defaults: none (see the module comment).
+pub const PRIOR: &str = "";
 
 /// Results of one replicate.
 pub struct Replicate {
@@ -157,13 +158,13 @@ fn marron_wand_large() {
     );
 }
 
-/// The same benchmark with the current default δ = 1: fails on density #1 (kept to show
-/// the finding; it should pass once the default is lowered).
+/// The same benchmark with the earlier default, δ fixed at 1: fails on density #1 (kept
+/// to show the finding behind the change of default).
 #[test]
 #[ignore]
 fn marron_wand_with_delta_one() {
     benchmark(
-        "[prior]\ndirichlet_delta = 1.0\n",
+        "[prior]\ndelta_prior = \"fixed\"\ndirichlet_delta = 1.0\n",
         4,
         1,
         ChainPlan {

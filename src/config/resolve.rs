@@ -32,6 +32,9 @@ pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
     })
 }
 
+/// Largest sample for which `[sampler] allocation` defaults to "collapsed".
+pub const COLLAPSED_MAX_N: usize = 20_000;
+
 /// Largest accepted values of the count keys: beyond them a run could not finish or would
 /// exhaust memory, so they are refused as input errors instead.
 const MAX_CHAINS: i64 = 1000;
@@ -229,8 +232,8 @@ pub fn resolve(
 
     let s = raw.sampler.clone().unwrap_or_default();
     let chains = ck.int_in("sampler", "chains", s.chains, 1, MAX_CHAINS, 4)?;
-    let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 2000)?;
-    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 5000)?;
+    let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 1000)?;
+    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 3000)?;
     let thin = ck.int_in("sampler", "thin", s.thin, 1, MAX_THIN, 1)?;
     if (warmup + draws * thin) as i64 > MAX_SWEEPS {
         return Err(ck.fail(
@@ -274,6 +277,23 @@ pub fn resolve(
     let alpha = ck.positive("alpha", p.alpha)?;
     let alpha_shape = ck.positive("alpha_shape", p.alpha_shape)?;
     let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
+
+    // The collapsed scan is sequential and costs a few times the vectorised conditional
+    // step per sweep, for two to six times the effective draws per sweep (docs/model.md);
+    // beyond COLLAPSED_MAX_N observations the default is the conditional step.
+    let allocation = match (s.allocation, &freq_weights, summary) {
+        (Some(AllocationKind::Collapsed), Some(_), _) => {
+            return Err(ck.fail(
+                "sampler",
+                "allocation",
+                "= \"collapsed\" does not support [data] weights yet; use \"conditional\"".into(),
+            ))
+        }
+        (Some(a), _, _) => a,
+        (None, Some(_), _) => AllocationKind::Conditional,
+        (None, None, Some(d)) if d.n > COLLAPSED_MAX_N => AllocationKind::Conditional,
+        (None, None, _) => AllocationKind::Collapsed,
+    };
 
     let g = raw.grid.clone().unwrap_or_default();
     let from = ck.finite("grid", "from", g.from)?;
@@ -334,7 +354,8 @@ pub fn resolve(
         var_scale_shape: var_scale_shape.unwrap_or(0.2),
         var_scale_rate: var_scale_rate.unwrap_or(10.0 / (range * range)),
         dirichlet_delta: dirichlet_delta.unwrap_or(1.0),
-        delta_prior: p.delta_prior.unwrap_or(HyperChoice::Fixed),
+        // A sparse finite mixture by default (docs/model.md, "Defaults").
+        delta_prior: p.delta_prior.unwrap_or(HyperChoice::Gamma),
         // Malsiner-Walli, Frühwirth-Schnatter & Grün (2016): δ ~ Gamma(10, 10 K), prior mean 1/K.
         delta_shape: delta_shape.unwrap_or(10.0),
         delta_rate: delta_rate.unwrap_or(10.0 * components as f64),
@@ -393,7 +414,7 @@ pub fn resolve(
         thin,
         seed,
         label_moves: s.label_moves.unwrap_or(true),
-        allocation: s.allocation.unwrap_or(AllocationKind::Conditional),
+        allocation,
         grid_from,
         grid_to,
         grid_points: points,

@@ -28,8 +28,8 @@ components = 10               # K; default 10 for dirichlet, 25 for stick-breaki
 # var_scale = 1.0             # b when fixed (default: (range/10)^2)
 # var_scale_shape = 0.2       # b ~ Gamma(shape, rate) when var_scale_prior = "gamma"
 # var_scale_rate = 1.0        # (default: 10 / range^2)
-# dirichlet_delta = 1.0       # delta of the symmetric Dirichlet weights
-# delta_prior = "fixed"       # "fixed" (at dirichlet_delta) or "gamma"
+# delta_prior = "gamma"       # "gamma" (default, a sparse finite mixture) or "fixed"
+# dirichlet_delta = 1.0       # delta of the symmetric Dirichlet weights when delta_prior = "fixed"
 # delta_shape = 10.0          # delta ~ Gamma(shape, rate) when delta_prior = "gamma"
 # delta_rate = 100.0          # (default: 10 K, prior mean 1/K; Malsiner-Walli et al. 2016)
 # alpha_prior = "gamma"       # stick-breaking concentration: "fixed" or "gamma"
@@ -39,11 +39,12 @@ components = 10               # K; default 10 for dirichlet, 25 for stick-breaki
 
 [sampler]
 chains = 4
-warmup = 2000                 # sweeps discarded per chain (defaults: docs/model.md, "Weight priors and mixing")
-draws = 5000                  # kept draws per chain
+warmup = 1000                 # sweeps discarded per chain (defaults: docs/model.md, "Defaults")
+draws = 3000                  # kept draws per chain
 thin = 1                      # keep every thin-th sweep after warm-up
 # seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
 label_moves = true            # label-switching moves for stick-breaking weights (docs/model.md)
+# allocation = "collapsed"    # "collapsed" (default up to 20 000 observations) or "conditional"
 # chain_ids = [1, 2]          # run only these chains, for jobs joined by `mixband merge`
 
 [grid]                        # where the density is evaluated

@@ -13,11 +13,13 @@ pub mod collapsed;
 #[doc(hidden)]
 pub mod components;
 pub mod concentration;
+mod fastlog;
 #[doc(hidden)]
 pub mod hyper;
 mod init;
 pub mod label_moves;
 pub mod rng;
+pub mod split_merge;
 mod sweep;
 #[doc(hidden)]
 pub mod weights;

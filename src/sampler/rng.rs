@@ -20,6 +20,8 @@ const SWEEP_STREAM: u64 = u64::MAX;
 const LABEL_STREAM: u64 = u64::MAX - 1;
 /// Block index reserved for the collapsed allocation scan of a sweep (see `collapsed`).
 const COLLAPSED_STREAM: u64 = u64::MAX - 2;
+/// Block index reserved for the split–merge proposals of a sweep (see `split_merge`).
+const SPLIT_MERGE_STREAM: u64 = u64::MAX - 3;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
 
@@ -68,6 +70,11 @@ impl StreamKey {
     /// Generator for the collapsed allocation scan in sweep `sweep`.
     pub fn collapsed_rng(&self, sweep: u64) -> ChaCha8Rng {
         self.rng(sweep, COLLAPSED_STREAM)
+    }
+
+    /// Generator for the split–merge proposals in sweep `sweep`.
+    pub fn split_merge_rng(&self, sweep: u64) -> ChaCha8Rng {
+        self.rng(sweep, SPLIT_MERGE_STREAM)
     }
 
     /// Generator for the chain's starting point.

@@ -7,6 +7,11 @@ use super::allocate::{
     ComponentTable,
 };
 use super::collapsed::collapsed_scan;
+use super::split_merge::split_merge;
+
+/// Split–merge proposals per collapsed sweep; each costs O(size of the components
+/// involved), against O(N K) for the scan.
+pub const SPLIT_MERGE_PROPOSALS: usize = 5;
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
@@ -122,7 +127,8 @@ pub fn sweep_opts(
 }
 
 /// The allocation drawn given the parameters (reference arithmetic, recording each
-/// observation's component), then one collapsed scan; the log-likelihood is that of the
+/// observation's component), then one collapsed scan and the split–merge proposals; the
+/// log-likelihood is that of the
 /// state the sweep started from, as on the fast path.
 fn collapsed_allocation(
     x: &[f64],
@@ -134,7 +140,16 @@ fn collapsed_allocation(
 ) -> Allocation {
     let mut z = vec![0u32; x.len()];
     let first = allocate_reference_labels(x, table, key, index, Some(&mut z));
-    let stats = collapsed_scan(x, &mut z, prior, state, &mut key.collapsed_rng(index));
+    let mut stats = collapsed_scan(x, &mut z, prior, state, &mut key.collapsed_rng(index));
+    split_merge(
+        x,
+        &mut z,
+        &mut stats,
+        prior,
+        state,
+        SPLIT_MERGE_PROPOSALS,
+        &mut key.split_merge_rng(index),
+    );
     Allocation {
         stats,
         loglik: first.loglik,

@@ -1,0 +1,320 @@
+//! Split–merge moves on the allocations, for the collapsed sweep: Metropolis–Hastings
+//! proposals that split one occupied component in two or merge two into one in a single
+//! step, which single-observation updates can only do by emptying a component one member
+//! at a time through states of low posterior probability. The proposal is the
+//! sequentially allocated split of Dahl (2003, "An improved merge-split sampler for
+//! conjugate Dirichlet process mixture models", Tech. Rep. 1086, Univ. Wisconsin), in the
+//! Metropolis–Hastings framework of Jain & Neal (2004, JCGS 13:158–182), here for labelled
+//! components of a finite or truncated prior.
+//!
+//! One proposal: pick an ordered pair of observations (i, j), i ≠ j, uniformly.
+//! - Same component c: split. Start A = {i}, B = {j}; the other members of c, in index
+//!   order, join A or B with probability ∝ |side| · p(x_k | side so far) (the predictive
+//!   with parameters integrated out). A keeps label c; B takes an empty label drawn
+//!   uniformly from the E empty labels (no split when E = 0).
+//! - Different components: merge. Everything in z_j's component joins z_i's, whose label
+//!   it keeps; z_j's label becomes empty.
+//!
+//! With π(z) = p(z | weights prior) Π_c m(x_c) (m the marginal likelihood of a
+//! component's points) and q_seq the probability of the sequential allocation producing
+//! (A, B), the acceptance probabilities are
+//!   split: min{1, π(z′)/π(z) · E / q_seq},    merge: min{1, π(z′)/π(z) · q_seq / (E + 1)},
+//! where for the merge q_seq is that of the split undoing it and E + 1 counts the empty
+//! labels after it. Only the weights prior and the two components' marginal likelihoods
+//! change (their marginal likelihoods in closed form, [`log_marginal`]): for Dirichlet(δ)
+//! weights ln p(z) = Σ_k ln Γ(δ + n_k) + const, for
+//! stick-breaking weights it is [`log_label_prior`]. The same conditioning as the scan
+//! holds (b, concentration and, location kernel, σ² fixed), so the move leaves
+//! p(z | x, those) invariant; tested by enumeration in tests/collapsed_exact.rs.
+
+use rand::Rng;
+use statrs::function::gamma::ln_gamma;
+
+use super::allocate::fastexp::exp_fast;
+use super::allocate::SuffStats;
+use super::collapsed::{log_marginal, log_predictive, predictive_terms, HalfSteps};
+use super::fastlog::ln_fast;
+use super::label_moves::log_label_prior;
+use crate::config::WeightsKind;
+use crate::model::{Prior, State};
+
+/// Proposals and acceptances of one call.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct SplitMergeTally {
+    pub splits_proposed: u32,
+    pub splits_accepted: u32,
+    pub merges_proposed: u32,
+    pub merges_accepted: u32,
+}
+
+/// A component being built up one point at a time: (n, sum, sum of squares).
+#[derive(Clone, Copy)]
+struct Running {
+    stats: (u64, f64, f64),
+}
+
+impl Running {
+    fn of(x: f64) -> Self {
+        Running {
+            stats: (1, x, x * x),
+        }
+    }
+
+    fn push(&mut self, x: f64) {
+        self.stats.0 += 1;
+        self.stats.1 += x;
+        self.stats.2 += x * x;
+    }
+
+    fn log_m(&self, prior: &Prior, state: &State) -> f64 {
+        log_marginal(prior, state, self.stats)
+    }
+}
+
+/// ln p(n | weights prior) up to a constant that does not depend on the labelled counts.
+fn log_weights_prior(prior: &Prior, concentration: f64, n: &[u64]) -> f64 {
+    match prior.weights {
+        WeightsKind::Dirichlet => n.iter().map(|&c| ln_gamma(concentration + c as f64)).sum(),
+        WeightsKind::StickBreaking => log_label_prior(concentration, n),
+    }
+}
+
+/// Whether to leave out the E and E + 1 label-choice factors (the joint-distribution
+/// fault of [`split_merge_faulty`]).
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Labels {
+    Counted,
+    Ignored,
+}
+
+/// Runs `proposals` split–merge proposals on the allocations `z`, keeping `stats` (their
+/// counts, sums and sums of squares) in step.
+pub fn split_merge<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    stats: &mut SuffStats,
+    prior: &Prior,
+    state: &State,
+    proposals: usize,
+    rng: &mut R,
+) -> SplitMergeTally {
+    run(x, z, stats, prior, state, proposals, rng, Labels::Counted)
+}
+
+/// [`split_merge`] with the label-choice factors E and 1/(E + 1) left out of the
+/// acceptance ratios, for the test that must reject it.
+#[doc(hidden)]
+pub fn split_merge_faulty<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    stats: &mut SuffStats,
+    prior: &Prior,
+    state: &State,
+    proposals: usize,
+    rng: &mut R,
+) -> SplitMergeTally {
+    run(x, z, stats, prior, state, proposals, rng, Labels::Ignored)
+}
+
+#[allow(clippy::too_many_arguments)]
+fn run<R: Rng + ?Sized>(
+    x: &[f64],
+    z: &mut [u32],
+    stats: &mut SuffStats,
+    prior: &Prior,
+    state: &State,
+    proposals: usize,
+    rng: &mut R,
+    labels: Labels,
+) -> SplitMergeTally {
+    let n_obs = x.len();
+    let mut tally = SplitMergeTally::default();
+    if n_obs < 2 {
+        return tally;
+    }
+    let half = HalfSteps::new(prior.var_shape, n_obs);
+    let mut members: Vec<usize> = Vec::new();
+    let mut to_b: Vec<bool> = Vec::new();
+    for _ in 0..proposals {
+        let i = rng.random_range(0..n_obs);
+        let mut j = rng.random_range(0..n_obs - 1);
+        if j >= i {
+            j += 1;
+        }
+        let (ci, cj) = (z[i] as usize, z[j] as usize);
+        let split = ci == cj;
+        let empty: Vec<usize> = (0..stats.n.len()).filter(|&k| stats.n[k] == 0).collect();
+        if split {
+            tally.splits_proposed += 1;
+            if empty.is_empty() {
+                continue;
+            }
+        } else {
+            tally.merges_proposed += 1;
+        }
+        members.clear();
+        members.extend(
+            (0..n_obs)
+                .filter(|&k| k != i && k != j && (z[k] as usize == ci || z[k] as usize == cj)),
+        );
+        let log_prior_now = log_weights_prior(prior, state.concentration, &stats.n);
+        let mut n_after = stats.n.clone();
+
+        if !split {
+            // Merge. Everything but q is known from the statistics, and ln q ≤ 0, so a
+            // uniform above that bound rejects without the sequential pass (the same
+            // decision as computing q first).
+            let (sa, sb) = (get(stats, ci), get(stats, cj));
+            let sm = (sa.0 + sb.0, sa.1 + sb.1, sa.2 + sb.2);
+            n_after[ci] = sm.0;
+            n_after[cj] = 0;
+            let e1 = match labels {
+                Labels::Counted => ((empty.len() + 1) as f64).ln(),
+                Labels::Ignored => 0.0,
+            };
+            let bound = log_weights_prior(prior, state.concentration, &n_after) - log_prior_now
+                + log_marginal(prior, state, sm)
+                - log_marginal(prior, state, sa)
+                - log_marginal(prior, state, sb)
+                - e1;
+            let log_u = (1.0 - rng.random::<f64>()).ln();
+            if log_u >= bound {
+                continue;
+            }
+            let (_, _, log_q) = sequential(
+                x,
+                (i, j),
+                &members,
+                Follow(z, cj),
+                (prior, state, &half),
+                rng,
+                &mut to_b,
+            );
+            if log_u < bound + log_q {
+                tally.merges_accepted += 1;
+                z[j] = ci as u32;
+                for &k in &members {
+                    z[k] = ci as u32;
+                }
+                set(stats, ci, sm);
+                set(stats, cj, (0, 0.0, 0.0));
+            }
+            continue;
+        }
+
+        // Split.
+        let (a, b, log_q) = sequential(
+            x,
+            (i, j),
+            &members,
+            Draw,
+            (prior, state, &half),
+            rng,
+            &mut to_b,
+        );
+        let sm = (
+            a.stats.0 + b.stats.0,
+            a.stats.1 + b.stats.1,
+            a.stats.2 + b.stats.2,
+        );
+        let l = empty[rng.random_range(0..empty.len())];
+        n_after[ci] = a.stats.0;
+        n_after[l] = b.stats.0;
+        let e = match labels {
+            Labels::Counted => (empty.len() as f64).ln(),
+            Labels::Ignored => 0.0,
+        };
+        let log_ratio = log_weights_prior(prior, state.concentration, &n_after) - log_prior_now
+            + a.log_m(prior, state)
+            + b.log_m(prior, state)
+            - log_marginal(prior, state, sm)
+            + e
+            - log_q;
+        if log_ratio >= 0.0 || (1.0 - rng.random::<f64>()).ln() < log_ratio {
+            tally.splits_accepted += 1;
+            z[j] = l as u32;
+            for (&k, &gb) in members.iter().zip(&to_b) {
+                if gb {
+                    z[k] = l as u32;
+                }
+            }
+            set(stats, ci, a.stats);
+            set(stats, l, b.stats);
+        }
+    }
+    tally
+}
+
+/// Whether the sequential allocation draws the sides (a split) or follows the current
+/// split between two components, the second being `.1` (a merge's reverse).
+struct Draw;
+struct Follow<'a>(&'a [u32], usize);
+
+trait Side {
+    fn goes_b<R: Rng + ?Sized>(&self, k: usize, log_p_b: f64, rng: &mut R) -> bool;
+}
+
+impl Side for Draw {
+    fn goes_b<R: Rng + ?Sized>(&self, _: usize, log_p_b: f64, rng: &mut R) -> bool {
+        rng.random::<f64>() < log_p_b.exp()
+    }
+}
+
+impl Side for Follow<'_> {
+    fn goes_b<R: Rng + ?Sized>(&self, k: usize, _: f64, _: &mut R) -> bool {
+        self.0[k] as usize == self.1
+    }
+}
+
+/// The sequential allocation from A = {i}, B = {j} over `members` in order: each joins a
+/// side with probability ∝ |side| · predictive given the side so far. Returns both
+/// sides and ln q, the probability of the choices made; `to_b` records them.
+fn sequential<R: Rng + ?Sized, S: Side>(
+    x: &[f64],
+    (i, j): (usize, usize),
+    members: &[usize],
+    side: S,
+    (prior, state, half): (&Prior, &State, &HalfSteps),
+    rng: &mut R,
+    to_b: &mut Vec<bool>,
+) -> (Running, Running, f64) {
+    let mut a = Running::of(x[i]);
+    let mut b = Running::of(x[j]);
+    let mut log_q = 0.0;
+    to_b.clear();
+    // Each member changes one side, so only that side's terms are recomputed.
+    let terms = |r: &Running| predictive_terms(prior, state, half, r.stats, false);
+    let (mut ta, mut tb) = (terms(&a), terms(&b));
+    let (mut lna, mut lnb) = (0.0, 0.0);
+    for &k in members {
+        let wa = lna + log_predictive(prior.kernel, &ta, x[k]);
+        let wb = lnb + log_predictive(prior.kernel, &tb, x[k]);
+        // ln P(B) = wb − ln(e^wa + e^wb), computed stably.
+        let (hi, lo) = if wa >= wb { (wa, wb) } else { (wb, wa) };
+        let log_norm = hi + ln_fast(1.0 + exp_fast(lo - hi));
+        let goes_b = side.goes_b(k, wb - log_norm, rng);
+        if goes_b {
+            log_q += wb - log_norm;
+            b.push(x[k]);
+            tb = terms(&b);
+            lnb = ln_fast(b.stats.0 as f64);
+        } else {
+            log_q += wa - log_norm;
+            a.push(x[k]);
+            ta = terms(&a);
+            lna = ln_fast(a.stats.0 as f64);
+        }
+        to_b.push(goes_b);
+    }
+    (a, b, log_q)
+}
+
+fn get(stats: &SuffStats, k: usize) -> (u64, f64, f64) {
+    (stats.n[k], stats.sum[k], stats.sumsq[k])
+}
+
+fn set(stats: &mut SuffStats, k: usize, (n, s1, s2): (u64, f64, f64)) {
+    stats.n[k] = n;
+    stats.sum[k] = s1;
+    stats.sumsq[k] = s2;
+}
