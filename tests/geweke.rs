@@ -335,6 +335,22 @@ fn geweke_collapsed_all_combinations() {
     }
 }
 
+/// The collapsed sweep with δ ~ Gamma (the default weight prior): the concentration is
+/// updated given the counts after the scan and split–merge.
+#[test]
+fn geweke_collapsed_dirichlet_with_delta_prior() {
+    for (i, kernel) in [Kernel::Location, Kernel::LocationScale].into_iter().enumerate() {
+        let p = Prior {
+            concentration: Concentration::Gamma {
+                shape: 2.0,
+                rate: 2.0,
+            },
+            ..prior_with(kernel, WeightsKind::Dirichlet, true)
+        };
+        check_prior(&p, M_FAST, 61 + i as u64);
+    }
+}
+
 /// Longer version: ten times the draws, for a stricter check after sampler changes.
 #[test]
 #[ignore]

@@ -29,8 +29,24 @@ use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
 use validation_support::{chain_states, chi2_upper};
 
-/// The four combinations with the priors used to calibrate them (standard units).
-pub fn combos() -> Vec<(&'static str, Prior)> {
+/// The four combinations with the priors used to calibrate them (standard units), each on
+/// the conditional sweep and on the collapsed one (scan, split–merge, count label moves).
+pub fn combos() -> Vec<(String, Prior)> {
+    let mut all: Vec<(String, Prior)> = Vec::new();
+    for (name, p) in base_combos() {
+        all.push((name.to_string(), p.clone()));
+        all.push((
+            format!("{name} (collapsed)"),
+            Prior {
+                collapsed: true,
+                ..p
+            },
+        ));
+    }
+    all
+}
+
+fn base_combos() -> Vec<(&'static str, Prior)> {
     let base = Prior {
         kernel: Kernel::Location,
         weights: WeightsKind::Dirichlet,
