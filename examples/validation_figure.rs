@@ -63,7 +63,7 @@ fn main() {
     let truth: Vec<f64> = grid.iter().map(|&v| true_density(&comps, v)).collect();
     let post = fit_with_defaults(
         &x,
-        "[prior]\ndirichlet_delta = 0.1\n",
+        "",
         1992,
         2,
         ChainPlan {

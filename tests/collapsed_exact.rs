@@ -129,14 +129,14 @@ fn exact_posterior(p: &Prior, s: &State) -> Vec<f64> {
             let z = decode(code);
             let mut n = vec![0usize; K];
             let mut lp = 0.0;
-            for k in 0..K {
+            for (k, nk) in n.iter_mut().enumerate() {
                 let pts: Vec<f64> = X
                     .iter()
                     .zip(&z)
                     .filter(|(_, &zi)| zi as usize == k)
                     .map(|(x, _)| *x)
                     .collect();
-                n[k] = pts.len();
+                *nk = pts.len();
                 lp += ln_marginal(p, s, &pts);
             }
             lp + ln_label_prior(p, &n)
@@ -251,7 +251,7 @@ fn moves_p_value(kernel: Kernel, log_prior: fn(f64, &[u64]) -> f64) -> f64 {
             let mut stats = collapsed_scan(&X, &mut z, &p, &s, &mut rng);
             let t = label_moves_counts_with(&mut stats, s.concentration, &mut rng, log_prior);
             accepted += t.labels_accepted + t.adjacent_accepted;
-            for i in 0..X.len() {
+            for (i, zi) in z.iter_mut().enumerate() {
                 let subset_of = |k: usize| {
                     (0..1usize << X.len()).any(|mask| {
                         mask & (1 << i) != 0
@@ -265,21 +265,12 @@ fn moves_p_value(kernel: Kernel, log_prior: fn(f64, &[u64]) -> f64) -> f64 {
                                 < 1e-9
                     })
                 };
-                z[i] = (0..K).find(|&k| stats.n[k] > 0 && subset_of(k)).unwrap() as u32;
+                *zi = (0..K).find(|&k| stats.n[k] > 0 && subset_of(k)).unwrap() as u32;
             }
             counts[encode(&z)] += 1;
         }
         assert!(accepted > 1000, "the moves never moved: {accepted}");
-        let e: Vec<f64> = exact.iter().map(|v| v * (SCANS / 2) as f64).collect();
-        let stat: f64 = counts
-            .iter()
-            .zip(&e)
-            .filter(|(_, &e)| e >= 20.0)
-            .map(|(&c, &e)| (c as f64 - e).powi(2) / e)
-            .sum();
-        let cells = e.iter().filter(|&&v| v >= 20.0).count();
-        let pv = 1.0 - ChiSquared::new((cells - 1) as f64).unwrap().cdf(stat);
-        pv
+        visits_p_value(&counts, &exact)
     }
 }
 
@@ -314,7 +305,14 @@ fn split_merge_p_value(p: &Prior, faulty: bool, seed: u64) -> f64 {
         "the move's counts drifted from its allocations"
     );
     assert!(accepted > 1000, "the move never moved: {accepted}");
-    let e: Vec<f64> = exact.iter().map(|v| v * (SCANS / 2) as f64).collect();
+    visits_p_value(&counts, &exact)
+}
+
+/// Pearson chi-square p-value of visit counts against exact probabilities, over the
+/// cells expected to hold at least 20 visits.
+fn visits_p_value(counts: &[u64], exact: &[f64]) -> f64 {
+    let total: u64 = counts.iter().sum();
+    let e: Vec<f64> = exact.iter().map(|v| v * total as f64).collect();
     let stat: f64 = counts
         .iter()
         .zip(&e)

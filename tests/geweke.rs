@@ -339,7 +339,10 @@ fn geweke_collapsed_all_combinations() {
 /// updated given the counts after the scan and split–merge.
 #[test]
 fn geweke_collapsed_dirichlet_with_delta_prior() {
-    for (i, kernel) in [Kernel::Location, Kernel::LocationScale].into_iter().enumerate() {
+    for (i, kernel) in [Kernel::Location, Kernel::LocationScale]
+        .into_iter()
+        .enumerate()
+    {
         let p = Prior {
             concentration: Concentration::Gamma {
                 shape: 2.0,

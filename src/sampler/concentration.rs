@@ -20,6 +20,7 @@
 use rand::Rng;
 use statrs::function::gamma::ln_gamma;
 
+use super::label_moves::log_label_prior;
 use crate::config::WeightsKind;
 use crate::dist::std_normal;
 use crate::model::{Concentration, Prior, State};
@@ -43,20 +44,15 @@ pub fn log_lik_dirichlet(delta: f64, n: &[u64]) -> f64 {
     s
 }
 
-/// ln p(z | α) up to a constant in α, for stick-breaking weights truncated at `n.len()`.
+/// ln p(z | α) up to a constant in α, for stick-breaking weights truncated at `n.len()`:
+/// [`log_label_prior`] without its Γ(1 + n_k) terms, which do not depend on α.
 pub fn log_lik_stick(alpha: f64, n: &[u64]) -> f64 {
-    let mut tail: u64 = n.iter().sum();
-    let mut s = 0.0;
-    for &c in &n[..n.len().saturating_sub(1)] {
-        tail -= c;
-        if c == 0 && tail == 0 {
-            break;
-        }
-        // ln α + ln B(1 + n_k, α + T_k), dropping ln Γ(1 + n_k) (constant in α).
-        let t = tail as f64;
-        s += alpha.ln() + ln_gamma(alpha + t) - ln_gamma(1.0 + c as f64 + alpha + t);
-    }
-    s
+    let k = n.len().saturating_sub(1);
+    log_label_prior(alpha, n)
+        - n[..k]
+            .iter()
+            .map(|&c| ln_gamma(1.0 + c as f64))
+            .sum::<f64>()
 }
 
 /// ln p(ln c = `eta` | counts) up to a constant.

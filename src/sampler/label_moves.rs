@@ -69,6 +69,16 @@ fn swap_components(stats: &mut SuffStats, state: &mut State, a: usize, b: usize)
     state.var.swap(a, b);
 }
 
+/// An ordered pair of distinct indices in 0..m, uniformly (m ≥ 2).
+pub(crate) fn distinct_pair<R: Rng + ?Sized>(m: usize, rng: &mut R) -> (usize, usize) {
+    let i = rng.random_range(0..m);
+    let mut l = rng.random_range(0..m - 1);
+    if l >= i {
+        l += 1;
+    }
+    (i, l)
+}
+
 /// MH acceptance of a proposal with log ratio `log_r`: ln U < ln r, U uniform on (0, 1].
 fn accept<R: Rng + ?Sized>(log_r: f64, rng: &mut R) -> bool {
     log_r >= 0.0 || (1.0 - rng.random::<f64>()).ln() < log_r
@@ -96,11 +106,7 @@ pub fn label_moves<R: Rng + ?Sized>(
     let m = occupied.len();
     if m >= 2 {
         for _ in 0..m {
-            let i = rng.random_range(0..m);
-            let mut l = rng.random_range(0..m - 1);
-            if l >= i {
-                l += 1;
-            }
+            let (i, l) = distinct_pair(m, rng);
             let (a, b) = (occupied[i], occupied[l]);
             let log_r = (ratios.swap_labels)(
                 stats.n[a] as f64,
@@ -202,11 +208,7 @@ pub fn label_moves_counts_with<R: Rng + ?Sized>(
     let m = occupied.len();
     if m >= 2 {
         for _ in 0..m {
-            let i = rng.random_range(0..m);
-            let mut l = rng.random_range(0..m - 1);
-            if l >= i {
-                l += 1;
-            }
+            let (i, l) = distinct_pair(m, rng);
             tally.labels_proposed += 1;
             if try_swap(stats, occupied[i], occupied[l], rng) {
                 tally.labels_accepted += 1;

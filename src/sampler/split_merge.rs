@@ -34,7 +34,7 @@ use super::allocate::fastexp::exp_fast;
 use super::allocate::SuffStats;
 use super::collapsed::{log_marginal, log_predictive, predictive_terms, HalfSteps};
 use super::fastlog::ln_fast;
-use super::label_moves::log_label_prior;
+use super::label_moves::{distinct_pair, log_label_prior};
 use crate::config::WeightsKind;
 use crate::model::{Prior, State};
 
@@ -136,11 +136,7 @@ fn run<R: Rng + ?Sized>(
     let mut members: Vec<usize> = Vec::new();
     let mut to_b: Vec<bool> = Vec::new();
     for _ in 0..proposals {
-        let i = rng.random_range(0..n_obs);
-        let mut j = rng.random_range(0..n_obs - 1);
-        if j >= i {
-            j += 1;
-        }
+        let (i, j) = distinct_pair(n_obs, rng);
         let (ci, cj) = (z[i] as usize, z[j] as usize);
         let split = ci == cj;
         let empty: Vec<usize> = (0..stats.n.len()).filter(|&k| stats.n[k] == 0).collect();
