@@ -325,7 +325,7 @@ fn visits_p_value(counts: &[u64], exact: &[f64]) -> f64 {
 
 /// The split–merge move (src/sampler/split_merge.rs) on its own targets the exact
 /// allocation posterior for every kernel x weights combination; with the label-choice
-/// factors E and 1/(E + 1) left out the same test rejects. The chain moves in large
+/// probabilities (1/E and 1/(E + 1) for the uniform choice) left out the same test rejects. The chain moves in large
 /// steps and is autocorrelated, so the test runs at the same strict level as above.
 #[test]
 fn split_merge_targets_the_exact_allocation_posterior() {

@@ -10,19 +10,21 @@
 //! One proposal: pick an ordered pair of observations (i, j), i ≠ j, uniformly.
 //! - Same component c: split. Start A = {i}, B = {j}; the other members of c, in index
 //!   order, join A or B with probability ∝ |side| · p(x_k | side so far) (the predictive
-//!   with parameters integrated out). A keeps label c; B takes an empty label drawn
-//!   uniformly from the E empty labels (no split when E = 0).
+//!   with parameters integrated out). A keeps label c; B takes an empty label, drawn
+//!   uniformly from the E empty labels for Dirichlet weights and with probability
+//!   ∝ 2^−r for the r-th smallest for stick-breaking weights (no split when E = 0).
 //! - Different components: merge. Everything in z_j's component joins z_i's, whose label
 //!   it keeps; z_j's label becomes empty.
 //!
 //! With π(z) = p(z | weights prior) Π_c m(x_c) (m the marginal likelihood of a
-//! component's points) and q_seq the probability of the sequential allocation producing
-//! (A, B), the acceptance probabilities are
-//!   split: min{1, π(z′)/π(z) · E / q_seq},    merge: min{1, π(z′)/π(z) · q_seq / (E + 1)},
-//! where for the merge q_seq is that of the split undoing it and E + 1 counts the empty
-//! labels after it. Only the weights prior and the two components' marginal likelihoods
-//! change (their marginal likelihoods in closed form, [`log_marginal`]): for Dirichlet(δ)
-//! weights ln p(z) = Σ_k ln Γ(δ + n_k) + const, for
+//! component's points), q_seq the probability of the sequential allocation producing
+//! (A, B) and P(l) the probability of the label choice, the acceptance probabilities are
+//!   split: min{1, π(z′)/π(z) / (P(l) q_seq)},    merge: min{1, π(z′)/π(z) · P′(c_j) q_seq},
+//! where for the merge q_seq is that of the split undoing it and P′(c_j) the probability
+//! that this split gives B label c_j back, among the empty labels after the merge (for the
+//! uniform choice P = 1/E and P′ = 1/(E + 1)). Only the weights prior and the two
+//! components' marginal likelihoods change (the latter in closed form,
+//! [`log_marginal`]): for Dirichlet(δ) weights ln p(z) = Σ_k ln Γ(δ + n_k) + const, for
 //! stick-breaking weights it is [`log_label_prior`]. The same conditioning as the scan
 //! holds (b, concentration and, location kernel, σ² fixed), so the move leaves
 //! p(z | x, those) invariant; tested by enumeration in tests/collapsed_exact.rs.
@@ -79,7 +81,7 @@ fn log_weights_prior(prior: &Prior, concentration: f64, n: &[u64]) -> f64 {
     }
 }
 
-/// Whether to leave out the E and E + 1 label-choice factors (the joint-distribution
+/// Whether to leave out the label-choice probabilities (the joint-distribution
 /// fault of [`split_merge_faulty`]).
 #[derive(Clone, Copy, PartialEq, Eq)]
 enum Labels {
@@ -101,7 +103,7 @@ pub fn split_merge<R: Rng + ?Sized>(
     run(x, z, stats, prior, state, proposals, rng, Labels::Counted)
 }
 
-/// [`split_merge`] with the label-choice factors E and 1/(E + 1) left out of the
+/// [`split_merge`] with the label-choice probabilities P(l) and P′(c_j) left out of the
 /// acceptance ratios, for the test that must reject it.
 #[doc(hidden)]
 pub fn split_merge_faulty<R: Rng + ?Sized>(
@@ -164,8 +166,12 @@ fn run<R: Rng + ?Sized>(
             let sm = (sa.0 + sb.0, sa.1 + sb.1, sa.2 + sb.2);
             n_after[ci] = sm.0;
             n_after[cj] = 0;
+            // ln of the probability that the split undoing this merge gives B label cj.
+            let mut after: Vec<usize> = empty.clone();
+            after.push(cj);
+            after.sort_unstable();
             let e1 = match labels {
-                Labels::Counted => ((empty.len() + 1) as f64).ln(),
+                Labels::Counted => -log_label_choice(prior.weights, &after, cj),
                 Labels::Ignored => 0.0,
             };
             let bound = log_weights_prior(prior, state.concentration, &n_after) - log_prior_now
@@ -213,11 +219,11 @@ fn run<R: Rng + ?Sized>(
             a.stats.1 + b.stats.1,
             a.stats.2 + b.stats.2,
         );
-        let l = empty[rng.random_range(0..empty.len())];
+        let l = draw_label(prior.weights, &empty, rng);
         n_after[ci] = a.stats.0;
         n_after[l] = b.stats.0;
         let e = match labels {
-            Labels::Counted => (empty.len() as f64).ln(),
+            Labels::Counted => -log_label_choice(prior.weights, &empty, l),
             Labels::Ignored => 0.0,
         };
         let log_ratio = log_weights_prior(prior, state.concentration, &n_after) - log_prior_now
@@ -303,6 +309,43 @@ fn sequential<R: Rng + ?Sized, S: Side>(
         to_b.push(goes_b);
     }
     (a, b, log_q)
+}
+
+/// ln of the probability that a split gives the new component label `l`, from the empty
+/// labels `empty` (in increasing order). Dirichlet weights are exchangeable, so the
+/// choice is uniform. Stick-breaking weights favour small labels, so the r-th smallest
+/// empty label is chosen with probability ∝ 2^−r: a split to a label far down the
+/// sticks, whose prior weight is tiny, is proposed rarely instead of as often as any other.
+fn log_label_choice(weights: WeightsKind, empty: &[usize], l: usize) -> f64 {
+    let e = empty.len() as f64;
+    match weights {
+        WeightsKind::Dirichlet => -e.ln(),
+        WeightsKind::StickBreaking => {
+            let r = empty.iter().position(|&v| v == l).expect("label is empty") as f64;
+            // Σ_{r<E} 2^−r = 2 − 2^{1−E}.
+            -r * std::f64::consts::LN_2 - (2.0 - 2f64.powf(1.0 - e)).ln()
+        }
+    }
+}
+
+/// Draws the new component's label from the empty labels, see [`log_label_choice`].
+fn draw_label<R: Rng + ?Sized>(weights: WeightsKind, empty: &[usize], rng: &mut R) -> usize {
+    match weights {
+        WeightsKind::Dirichlet => empty[rng.random_range(0..empty.len())],
+        WeightsKind::StickBreaking => {
+            let total = 2.0 - 2f64.powf(1.0 - empty.len() as f64);
+            let u = rng.random::<f64>() * total;
+            let (mut acc, mut p) = (0.0, 1.0);
+            for &l in empty {
+                acc += p;
+                if u < acc {
+                    return l;
+                }
+                p *= 0.5;
+            }
+            empty[empty.len() - 1]
+        }
+    }
 }
 
 fn get(stats: &SuffStats, k: usize) -> (u64, f64, f64) {
