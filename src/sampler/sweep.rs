@@ -11,7 +11,7 @@ use super::split_merge::split_merge;
 
 /// Split–merge proposals per collapsed sweep; each costs O(size of the components
 /// involved), against O(N K) for the scan.
-pub const SPLIT_MERGE_PROPOSALS: usize = 5;
+pub const SPLIT_MERGE_PROPOSALS: usize = 10;
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
