@@ -8,6 +8,7 @@
 
 use mixband::sampler::allocate::dispatch::{exp_fast_in_place, kernel_probabilities};
 use mixband::sampler::allocate::fastexp::{exp_fast, MIN_NORMAL_ARG};
+use mixband::sampler::allocate::fastln::ln_fast_f64;
 use mixband::sampler::allocate::reference::terms;
 use mixband::sampler::allocate::{
     allocate_reference, allocate_with, loglik_reference, loglik_with, AllocOptions, ComponentTable,
@@ -95,6 +96,38 @@ fn fast_exp_is_the_same_for_every_instruction_set() {
             }
         }
     }
+}
+
+#[test]
+fn fast_ln_matches_std_ln() {
+    // Bound (docs/performance.md): absolute 1e-15 · max(1, ln s) for s ≥ 1; the kernel
+    // passes s = Σ_k exp(t_k − max) ∈ [1, K].
+    let mut rng = ChaCha8Rng::seed_from_u64(5);
+    let mut ss: Vec<f64> = (0..100_000)
+        .map(|_| 1.0 + rng.random::<f64>() * 63.0)
+        .collect();
+    ss.extend((0..100_000).map(|_| (rng.random::<f64>() * 700.0).exp()));
+    ss.extend([
+        1.0,
+        1.0 + f64::EPSILON,
+        std::f64::consts::SQRT_2,
+        2.0,
+        1e300,
+        f64::MAX,
+    ]);
+    // Just below and above each √2 · 2^e, where the reduction switches exponent.
+    for e in 0..60 {
+        let b = std::f64::consts::SQRT_2 * (e as f64).exp2();
+        ss.extend([b.next_down(), b, b.next_up()]);
+    }
+    let mut worst = 0.0f64;
+    for &s in &ss {
+        let (f, want) = (ln_fast_f64(s), s.ln());
+        let err = (f - want).abs() / want.max(1.0);
+        assert!(err <= 1e-15, "s = {s}: {f} vs {want} ({err:e})");
+        worst = worst.max(err);
+    }
+    println!("fast ln: worst absolute error / max(1, ln s): {worst:e}");
 }
 
 /// A random table: `k` components, some near the data, some far from every point.

@@ -13,7 +13,8 @@
 //! with Σ_{j≤k} p_j ≤ u, as the running sum never decreases). So with std's `exp` this
 //! kernel gives the reference's bits; with [`super::fastexp::exp_fast`] only the
 //! exponentials differ (relative 6e-15 for terms near the largest, under 1.8e-13 for the
-//! smallest normal ones).
+//! smallest normal ones), and the log-likelihood's ln s_i, by
+//! [`super::fastln::ln_fast`] (absolute 1e-15 · max(1, ln s)).
 
 use rand::Rng;
 use rand_chacha::ChaCha8Rng;
@@ -26,14 +27,15 @@ use super::types::{ComponentTable, SuffStats};
 pub const TILE: usize = 128;
 const _: () = assert!(TILE.is_multiple_of(MAX_W));
 
-/// Which exponential the kernel uses, on a vector.
+/// Which exponential and logarithm the kernel uses, on a vector.
 pub trait ExpFn {
     fn exp<L: Lanes>(v: L) -> L;
+    fn ln<L: Lanes>(v: L) -> L;
 }
 
-/// std's `exp` (the reference's).
+/// std's `exp` and `ln` (the reference's).
 pub struct StdExp;
-/// [`super::fastexp::exp_fast`].
+/// [`super::fastexp::exp_fast`] and [`super::fastln::ln_fast`].
 pub struct FastExp;
 
 impl ExpFn for StdExp {
@@ -41,12 +43,20 @@ impl ExpFn for StdExp {
     fn exp<L: Lanes>(v: L) -> L {
         v.exp_std()
     }
+    #[inline(always)]
+    fn ln<L: Lanes>(v: L) -> L {
+        v.ln_std()
+    }
 }
 
 impl ExpFn for FastExp {
     #[inline(always)]
     fn exp<L: Lanes>(v: L) -> L {
         v.exp_fast()
+    }
+    #[inline(always)]
+    fn ln<L: Lanes>(v: L) -> L {
+        v.ln_fast()
     }
 }
 
@@ -60,6 +70,8 @@ pub struct Scratch {
     x: Vec<f64>,
     m: Vec<f64>,
     s: Vec<f64>,
+    /// ln s_i.
+    ls: Vec<f64>,
     u: Vec<f64>,
     count: Vec<u64>,
 }
@@ -72,13 +84,14 @@ impl Scratch {
             x: vec![0.0; TILE],
             m: vec![0.0; TILE],
             s: vec![0.0; TILE],
+            ls: vec![0.0; TILE],
             u: vec![0.0; TILE],
             count: vec![0; TILE],
         }
     }
 }
 
-/// Fills the tile's terms exp(t_jk − m_i), the maxima m_i and the sums s_i. Lanes past
+/// Fills the tile's terms exp(t_jk − m_i), the maxima m_i, the sums s_i and ln s_i. Lanes past
 /// `x.len()` in the last group hold the terms of x = 0, never read.
 #[inline(always)]
 fn tile_terms<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratch) {
@@ -110,6 +123,7 @@ fn tile_terms<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratc
             }
             m.store(sc.m.as_mut_ptr().add(g * w));
             s.store(sc.s.as_mut_ptr().add(g * w));
+            E::ln(s).store(sc.ls.as_mut_ptr().add(g * w));
         }
     }
 }
@@ -117,8 +131,8 @@ fn tile_terms<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratc
 /// Σ_i (m_i + ln s_i) over the tile, summed in observation order onto `ll`.
 #[inline(always)]
 fn tile_loglik(n: usize, sc: &Scratch, mut ll: f64) -> f64 {
-    for (&mi, &si) in sc.m[..n].iter().zip(&sc.s[..n]) {
-        ll += mi + si.ln();
+    for (&mi, &li) in sc.m[..n].iter().zip(&sc.ls[..n]) {
+        ll += mi + li;
     }
     ll
 }

@@ -33,10 +33,37 @@ pub trait Lanes: Copy {
     fn add(self, o: Self) -> Self;
     fn sub(self, o: Self) -> Self;
     fn mul(self, o: Self) -> Self;
+    fn div(self, o: Self) -> Self;
+    /// Bit patterns as u64: `self − o` (wrapping).
+    fn bits_sub(self, o: Self) -> Self;
+    /// Bit patterns as u64: `self | o`.
+    fn bits_or(self, o: Self) -> Self;
+    /// Bit patterns as u64: `self << 52`.
+    fn bits_shl52(self) -> Self;
+    /// Bit patterns as u64: `self >> 52` (logical).
+    fn bits_shr52(self) -> Self;
     /// `if self > m { self } else { m }` per lane.
     fn max_of(self, m: Self) -> Self;
     /// [`exp_fast`] per lane.
     fn exp_fast(self) -> Self;
+
+    /// [`super::fastln::ln_fast`] per lane.
+    #[inline(always)]
+    fn ln_fast(self) -> Self {
+        super::fastln::ln_fast(self)
+    }
+
+    /// std's `ln` per lane.
+    #[inline(always)]
+    fn ln_std(self) -> Self {
+        let mut buf = [0.0; MAX_W];
+        // SAFETY: buf holds MAX_W ≥ W doubles.
+        unsafe {
+            self.store(buf.as_mut_ptr());
+            buf[..Self::W].iter_mut().for_each(|v| *v = v.ln());
+            Self::load(buf.as_ptr())
+        }
+    }
 
     /// std's `exp` per lane.
     #[inline(always)]
@@ -87,6 +114,26 @@ impl Lanes for f64 {
     #[inline(always)]
     fn mul(self, o: Self) -> Self {
         self * o
+    }
+    #[inline(always)]
+    fn div(self, o: Self) -> Self {
+        self / o
+    }
+    #[inline(always)]
+    fn bits_sub(self, o: Self) -> Self {
+        f64::from_bits(self.to_bits().wrapping_sub(o.to_bits()))
+    }
+    #[inline(always)]
+    fn bits_or(self, o: Self) -> Self {
+        f64::from_bits(self.to_bits() | o.to_bits())
+    }
+    #[inline(always)]
+    fn bits_shl52(self) -> Self {
+        f64::from_bits(self.to_bits() << 52)
+    }
+    #[inline(always)]
+    fn bits_shr52(self) -> Self {
+        f64::from_bits(self.to_bits() >> 52)
     }
     #[inline(always)]
     fn max_of(self, m: Self) -> Self {
@@ -167,6 +214,44 @@ mod x86 {
             unsafe { Sse2(_mm_mul_pd(self.0, o.0)) }
         }
         #[inline(always)]
+        fn div(self, o: Self) -> Self {
+            unsafe { Sse2(_mm_div_pd(self.0, o.0)) }
+        }
+        #[inline(always)]
+        fn bits_sub(self, o: Self) -> Self {
+            unsafe {
+                Sse2(_mm_castsi128_pd(_mm_sub_epi64(
+                    _mm_castpd_si128(self.0),
+                    _mm_castpd_si128(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_or(self, o: Self) -> Self {
+            unsafe {
+                Sse2(_mm_castsi128_pd(_mm_or_si128(
+                    _mm_castpd_si128(self.0),
+                    _mm_castpd_si128(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_shl52(self) -> Self {
+            unsafe {
+                Sse2(_mm_castsi128_pd(_mm_slli_epi64::<52>(_mm_castpd_si128(
+                    self.0,
+                ))))
+            }
+        }
+        #[inline(always)]
+        fn bits_shr52(self) -> Self {
+            unsafe {
+                Sse2(_mm_castsi128_pd(_mm_srli_epi64::<52>(_mm_castpd_si128(
+                    self.0,
+                ))))
+            }
+        }
+        #[inline(always)]
         fn max_of(self, m: Self) -> Self {
             // maxpd(a, b) = a > b ? a : b, b when either is NaN.
             unsafe { Sse2(_mm_max_pd(self.0, m.0)) }
@@ -180,12 +265,10 @@ mod x86 {
                 let t = _mm_add_pd(y, magic);
                 let n = _mm_sub_pd(t, magic);
                 let f = _mm_sub_pd(y, n);
-                let f2 = _mm_mul_pd(f, f);
-                let e0 = _mm_add_pd(_mm_mul_pd(_mm_set1_pd(A1), f), _mm_set1_pd(1.0));
-                let e1 = _mm_add_pd(_mm_mul_pd(_mm_set1_pd(A3), f), _mm_set1_pd(A2));
-                let e2 = _mm_add_pd(_mm_mul_pd(_mm_set1_pd(A5), f), _mm_set1_pd(A4));
-                let inner = _mm_add_pd(e1, _mm_mul_pd(f2, e2));
-                let p = _mm_add_pd(e0, _mm_mul_pd(f2, inner));
+                let mut p = _mm_set1_pd(A5);
+                for c in [A4, A3, A2, A1, 1.0] {
+                    p = _mm_add_pd(_mm_mul_pd(p, f), _mm_set1_pd(c));
+                }
                 let tb = _mm_castpd_si128(t);
                 let lo = _mm_cvtsi128_si64(tb) as u64;
                 let hi = _mm_cvtsi128_si64(_mm_unpackhi_epi64(tb, tb)) as u64;
@@ -243,6 +326,44 @@ mod x86 {
             unsafe { Avx2(_mm256_mul_pd(self.0, o.0)) }
         }
         #[inline(always)]
+        fn div(self, o: Self) -> Self {
+            unsafe { Avx2(_mm256_div_pd(self.0, o.0)) }
+        }
+        #[inline(always)]
+        fn bits_sub(self, o: Self) -> Self {
+            unsafe {
+                Avx2(_mm256_castsi256_pd(_mm256_sub_epi64(
+                    _mm256_castpd_si256(self.0),
+                    _mm256_castpd_si256(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_or(self, o: Self) -> Self {
+            unsafe {
+                Avx2(_mm256_castsi256_pd(_mm256_or_si256(
+                    _mm256_castpd_si256(self.0),
+                    _mm256_castpd_si256(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_shl52(self) -> Self {
+            unsafe {
+                Avx2(_mm256_castsi256_pd(_mm256_slli_epi64::<52>(
+                    _mm256_castpd_si256(self.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_shr52(self) -> Self {
+            unsafe {
+                Avx2(_mm256_castsi256_pd(_mm256_srli_epi64::<52>(
+                    _mm256_castpd_si256(self.0),
+                )))
+            }
+        }
+        #[inline(always)]
         fn max_of(self, m: Self) -> Self {
             unsafe { Avx2(_mm256_max_pd(self.0, m.0)) }
         }
@@ -255,12 +376,10 @@ mod x86 {
                 let t = _mm256_add_pd(y, magic);
                 let n = _mm256_sub_pd(t, magic);
                 let f = _mm256_sub_pd(y, n);
-                let f2 = _mm256_mul_pd(f, f);
-                let e0 = _mm256_add_pd(_mm256_mul_pd(_mm256_set1_pd(A1), f), _mm256_set1_pd(1.0));
-                let e1 = _mm256_add_pd(_mm256_mul_pd(_mm256_set1_pd(A3), f), _mm256_set1_pd(A2));
-                let e2 = _mm256_add_pd(_mm256_mul_pd(_mm256_set1_pd(A5), f), _mm256_set1_pd(A4));
-                let inner = _mm256_add_pd(e1, _mm256_mul_pd(f2, e2));
-                let p = _mm256_add_pd(e0, _mm256_mul_pd(f2, inner));
+                let mut p = _mm256_set1_pd(A5);
+                for c in [A4, A3, A2, A1, 1.0] {
+                    p = _mm256_add_pd(_mm256_mul_pd(p, f), _mm256_set1_pd(c));
+                }
                 let tb = _mm256_castpd_si256(t);
                 let idx = _mm256_and_si256(tb, _mm256_set1_epi64x(15));
                 let entry = _mm256_i64gather_epi64::<8>(TABLE.as_ptr().cast(), idx);
@@ -315,6 +434,44 @@ mod x86 {
         #[inline(always)]
         fn mul(self, o: Self) -> Self {
             unsafe { Avx512(_mm512_mul_pd(self.0, o.0)) }
+        }
+        #[inline(always)]
+        fn div(self, o: Self) -> Self {
+            unsafe { Avx512(_mm512_div_pd(self.0, o.0)) }
+        }
+        #[inline(always)]
+        fn bits_sub(self, o: Self) -> Self {
+            unsafe {
+                Avx512(_mm512_castsi512_pd(_mm512_sub_epi64(
+                    _mm512_castpd_si512(self.0),
+                    _mm512_castpd_si512(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_or(self, o: Self) -> Self {
+            unsafe {
+                Avx512(_mm512_castsi512_pd(_mm512_or_si512(
+                    _mm512_castpd_si512(self.0),
+                    _mm512_castpd_si512(o.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_shl52(self) -> Self {
+            unsafe {
+                Avx512(_mm512_castsi512_pd(_mm512_slli_epi64::<52>(
+                    _mm512_castpd_si512(self.0),
+                )))
+            }
+        }
+        #[inline(always)]
+        fn bits_shr52(self) -> Self {
+            unsafe {
+                Avx512(_mm512_castsi512_pd(_mm512_srli_epi64::<52>(
+                    _mm512_castpd_si512(self.0),
+                )))
+            }
         }
         #[inline(always)]
         fn max_of(self, m: Self) -> Self {

@@ -19,6 +19,7 @@
 pub mod blocked;
 pub mod dispatch;
 pub mod fastexp;
+pub mod fastln;
 mod lanes;
 mod parallel;
 pub mod reference;
