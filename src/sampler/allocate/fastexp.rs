@@ -117,9 +117,11 @@ pub(crate) mod avx512 {
             p = _mm512_add_pd(_mm512_mul_pd(p, f), _mm512_set1_pd(c));
         }
         let tb = _mm512_castpd_si512(t);
-        // vpermt2q reads the low 4 bits of each index lane: entry N mod 16.
+        // The shift first, so the permute may overwrite tb (no register copy).
+        let shifted = _mm512_slli_epi64::<48>(tb);
+        // vpermi2q/vpermt2q read the low 4 bits of each index lane: entry N mod 16.
         let entry = _mm512_permutex2var_epi64(tab.0, tb, tab.1);
-        let scale = _mm512_castsi512_pd(_mm512_add_epi64(entry, _mm512_slli_epi64::<48>(tb)));
+        let scale = _mm512_castsi512_pd(_mm512_add_epi64(entry, shifted));
         // Lanes with a ≥ MIN_NORMAL_ARG or NaN (not-less-than, unordered true) keep p ·
         // scale; the others are 0.
         let keep = _mm512_cmp_pd_mask::<_CMP_NLT_UQ>(a, _mm512_set1_pd(MIN_NORMAL_ARG));
