@@ -77,6 +77,8 @@ pub struct Scratch {
     m: Vec<f64>,
     s: Vec<f64>,
     u: Vec<f64>,
+    /// Random words for the tile's uniforms.
+    bits: Vec<u64>,
     count: Vec<u64>,
 }
 
@@ -89,6 +91,7 @@ impl Scratch {
             m: vec![0.0; TILE],
             s: vec![0.0; TILE],
             u: vec![0.0; TILE],
+            bits: vec![0; TILE],
             count: vec![0; TILE],
         }
     }
@@ -190,8 +193,13 @@ fn tile_pick<L: Lanes>(
 ) {
     let n = x.len();
     let w = L::W;
-    for (ui, &si) in sc.u[..n].iter_mut().zip(&sc.s[..n]) {
-        *ui = rng.random::<f64>() * si;
+    // The uniforms `rng.random::<f64>()` would give, one per observation in order: the
+    // same 64-bit words (the block generator's fill and next_u64 read its buffer alike;
+    // the reference test checks it), top 53 bits scaled to [0, 1), drawn in one call.
+    rng.fill(&mut sc.bits[..n]);
+    let scale = 1.0 / (1u64 << 53) as f64;
+    for ((ui, &b), &si) in sc.u[..n].iter_mut().zip(&sc.bits[..n]).zip(&sc.s[..n]) {
+        *ui = scale * ((b >> 11) as f64) * si;
     }
     assert!(n <= TILE && sc.k == k);
     for g in 0..n.div_ceil(w) {
@@ -209,11 +217,13 @@ fn tile_pick<L: Lanes>(
         }
     }
     let last = (k - 1) as u64;
+    // Slices of length k, so the indexing below needs no bounds checks (pick < k).
+    let (sn, ssum, ssq) = (&mut stats.n[..k], &mut stats.sum[..k], &mut stats.sumsq[..k]);
     for (&xi, &c) in x.iter().zip(&sc.count[..n]) {
         let pick = c.min(last) as usize;
-        stats.n[pick] += 1;
-        stats.sum[pick] += xi;
-        stats.sumsq[pick] += xi * xi;
+        sn[pick] += 1;
+        ssum[pick] += xi;
+        ssq[pick] += xi * xi;
     }
 }
 
