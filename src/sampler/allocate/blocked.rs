@@ -1,8 +1,8 @@
 //! The fast allocation kernel: one block of observations at a time, in tiles of [`TILE`]
 //! observations, register-blocked: for each group of `W` observations (one vector of
 //! [`Lanes`]) the loop over components keeps the running maximum, the running sum and, in
-//! the pick, the running cumulative sum and the count in registers, and the group's terms
-//! lie contiguously (components × lanes). Written once against [`Lanes`]; [`super::dispatch`]
+//! the pick, the count in registers, and the group's values lie contiguously (components ×
+//! lanes). The exp pass stores the running sums, which the pick compares with its uniform. Written once against [`Lanes`]; [`super::dispatch`]
 //! compiles it for each instruction set.
 //!
 //! Arithmetic per (observation, component) is the reference's, in the same order: the
@@ -97,10 +97,16 @@ impl Scratch {
     }
 }
 
-/// Fills the tile's terms exp(t_jk − m_i), the maxima m_i and the sums s_i. Lanes past
-/// `x.len()` in the last group hold the terms of x = 0, never read.
+/// Fills the tile's terms exp(t_jk − m_i) (with `PREFIX`, their running sums over
+/// components instead, which is all the pick needs: the sequence of additions is the
+/// pick's own, so the same bits), the maxima m_i and the sums s_i. Lanes past `x.len()`
+/// in the last group hold the values of x = 0, never read.
 #[inline(always)]
-fn tile_terms<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratch) {
+fn tile_terms<L: Lanes, E: ExpFn, const PREFIX: bool>(
+    x: &[f64],
+    t: &ComponentTable,
+    sc: &mut Scratch,
+) {
     let n = x.len();
     let k = t.k();
     let w = L::W;
@@ -124,8 +130,12 @@ fn tile_terms<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable, sc: &mut Scratc
             for j in 0..k {
                 let r = base.add(j * w);
                 let e = E::exp(L::load(r).sub(m));
-                e.store(r);
                 s = s.add(e);
+                if PREFIX {
+                    s.store(r);
+                } else {
+                    e.store(r);
+                }
             }
             m.store(sc.m.as_mut_ptr().add(g * w));
             s.store(sc.s.as_mut_ptr().add(g * w));
@@ -207,18 +217,20 @@ fn tile_pick<L: Lanes>(
         unsafe {
             let base = sc.p.as_ptr().add(g * k * w);
             let u = L::load(sc.u.as_ptr().add(g * w));
-            let mut acc = L::splat(0.0);
             let mut count = L::count_zero();
             for j in 0..k {
-                acc = acc.add(L::load(base.add(j * w)));
-                count = L::count_le(count, acc, u);
+                count = L::count_le(count, L::load(base.add(j * w)), u);
             }
             L::store_count(count, sc.count.as_mut_ptr().add(g * w));
         }
     }
     let last = (k - 1) as u64;
     // Slices of length k, so the indexing below needs no bounds checks (pick < k).
-    let (sn, ssum, ssq) = (&mut stats.n[..k], &mut stats.sum[..k], &mut stats.sumsq[..k]);
+    let (sn, ssum, ssq) = (
+        &mut stats.n[..k],
+        &mut stats.sum[..k],
+        &mut stats.sumsq[..k],
+    );
     for (&xi, &c) in x.iter().zip(&sc.count[..n]) {
         let pick = c.min(last) as usize;
         sn[pick] += 1;
@@ -240,7 +252,7 @@ pub fn block_pass<L: Lanes, E: ExpFn>(
     stats.clear();
     let mut ll = 0.0;
     for tile in x.chunks(TILE) {
-        tile_terms::<L, E>(tile, t, sc);
+        tile_terms::<L, E, true>(tile, t, sc);
         ll = tile_loglik::<L, E>(tile.len(), sc, ll);
         if let Some(r) = rng.as_deref_mut() {
             tile_pick::<L>(tile, t.k(), sc, r, stats);
@@ -258,7 +270,7 @@ pub fn probabilities<L: Lanes, E: ExpFn>(x: &[f64], t: &ComponentTable) -> Vec<V
     let mut sc = Scratch::new(k);
     let mut out = Vec::with_capacity(x.len());
     for tile in x.chunks(TILE) {
-        tile_terms::<L, E>(tile, t, &mut sc);
+        tile_terms::<L, E, false>(tile, t, &mut sc);
         for i in 0..tile.len() {
             let (g, lane) = (i / w, i % w);
             out.push(
