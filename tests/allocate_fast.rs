@@ -2,9 +2,13 @@
 //! (`mixband::sampler::allocate::reference`) and the fast exp against std's `exp`.
 //!
 //! Tolerances are ours (documented in docs/performance.md): fast exp relative error
-//! ≤ 7e-15 + 2.5e-16 |x| where e^x is a normal double, absolute ≤ 2^-1022 below; allocation probabilities
-//! relative ≤ 1e-12 where the reference's probability is a normal double, absolute
-//! ≤ 2^-1022 below. The reference uses std's `exp` (Rust's libm binding), the yardstick.
+//! ≤ 7e-15 + 2.5e-16 |x| where e^x is a normal double, absolute ≤ 2^-1022 below; fast ln
+//! absolute error ≤ 1e-15 · max(1, ln s) for s ≥ 1; allocation probabilities relative
+//! ≤ 1e-12 where the reference's probability is a normal double, absolute ≤ 2^-1022
+//! below; log-likelihood relative ≤ 1e-12. The reference uses std's `exp` and `ln`
+//! (Rust's libm binding), the yardstick; the ln and exp bounds are common practice for a
+//! double-precision kernel (no source), chosen well inside the 1e-12 the issue asks of
+//! the probabilities.
 
 use mixband::sampler::allocate::dispatch::{exp_fast_in_place, kernel_probabilities};
 use mixband::sampler::allocate::fastexp::{exp_fast, MIN_NORMAL_ARG};
@@ -52,7 +56,7 @@ fn exp_arguments() -> Vec<f64> {
 #[test]
 fn fast_exp_matches_std_exp() {
     // Bound (docs/performance.md): relative 7e-15 + 2.5e-16 |x| where e^x is a normal
-    // double (the reduction's rounding grows with |x|: under 1.8e-13 at x = −708), and
+    // double (the reduction's rounding grows with |x|: under 1.9e-13 at x = −708), and
     // absolute 2^-1022 below.
     let mut worst_small = 0.0f64;
     let mut worst_scaled = 0.0f64;

@@ -2,8 +2,9 @@
 //! observations, register-blocked: for each group of `W` observations (one vector of
 //! [`Lanes`]) the loop over components keeps the running maximum, the running sum and, in
 //! the pick, the count in registers, and the group's values lie contiguously (components ×
-//! lanes). The exp pass stores the running sums, which the pick compares with its uniform. Written once against [`Lanes`]; [`super::dispatch`]
-//! compiles it for each instruction set.
+//! lanes). The exp pass stores the running sums, which the pick compares with its
+//! uniform. Written once against [`Lanes`]; [`super::dispatch`] compiles it for each
+//! instruction set.
 //!
 //! Arithmetic per (observation, component) is the reference's, in the same order: the
 //! same log-probability expression, the same running maximum (`if v > m { v } else { m }`
@@ -12,9 +13,9 @@
 //! found from the same running sum (the first k with u < Σ_{j≤k} p_j is the number of k
 //! with Σ_{j≤k} p_j ≤ u, as the running sum never decreases). So with std's `exp` this
 //! kernel gives the reference's bits; with [`super::fastexp::exp_fast`] only the
-//! exponentials differ (relative 6e-15 for terms near the largest, under 1.8e-13 for the
-//! smallest normal ones), and the log-likelihood's ln s_i, by
-//! [`super::fastln::ln_fast`] (absolute 1e-15 · max(1, ln s)).
+//! exponentials differ (relative 6e-15 for terms near the largest, under 1.9e-13 for the
+//! smallest normal ones), and the log-likelihood, summed from products of the s_i with
+//! [`super::fastln::ln_fast`] (see `tile_loglik`).
 
 use rand::Rng;
 use rand_chacha::ChaCha8Rng;

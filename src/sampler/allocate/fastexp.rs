@@ -1,23 +1,24 @@
-//! A branch-free exp for the allocation step's arguments (a = t − max ≤ 0), written so the
-//! compiler vectorises it, plus the same arithmetic as AVX-512 intrinsics.
+//! A branch-free exp for the allocation step's arguments (a = t − max ≤ 0): the scalar
+//! definition, [`exp_fast`], and the same arithmetic on eight AVX-512 lanes; the SSE2 and
+//! AVX2 versions are in `lanes.rs`.
 //!
 //! e^a = 2^(N/16) · 2^(f/16): y = 16 a log₂e, N = round(y) (the 1.5 · 2^52 trick), f =
-//! y − N ∈ [−½, ½] (exact); 2^(f/16) by a degree-5 relative-minimax polynomial (|error|
-//! ≤ 5.6e-15 on [−½, ½], Horner's rule); 2^(N/16) = 2^⌊N/16⌋ · 2^(j/16), j = N mod 16, from a 16-entry
-//! table of bit patterns to which N << 48 is added in integer arithmetic (the exponent and
-//! the index at once; the table holds bits(2^(j/16)) − (j << 48)). Constants from
-//! `tests/reference/fastexp_coefficients.py`.
+//! y − N ∈ [−½, ½] (exact); 2^(f/16) by a degree-5 relative-minimax polynomial (error
+//! ≤ 5.6e-15 on [−½, ½]) by Horner's rule; 2^(N/16) = 2^⌊N/16⌋ · 2^(j/16), j = N mod 16,
+//! from a 16-entry table of bit patterns to which N << 48 is added in integer arithmetic
+//! (the exponent and the index at once; the table holds bits(2^(j/16)) − (j << 48)).
+//! Constants from `tests/reference/fastexp_coefficients.py`.
 //!
 //! Accuracy (tested against std's `exp` in `tests/allocate_fast.rs`): the rounding of y
 //! (relative 2^-53 from the product plus 2^-53 from the constant) is an absolute error up
-//! to |y| · 2.2e-16 in y, so the relative error grows with |a|: about 1e-15 + 2.3e-16 · |a|,
-//! under 1.7e-13 at a = −708; below 2e-15 for |a| ≤ 2, where the terms that carry the
-//! probability mass lie. Results below the smallest normal double (a < ln 2^-1022 ≈
-//! −708.40, including −∞) are returned as 0, an absolute error under 2.3e-308. NaN stays
-//! NaN. Only plain multiplies and adds are used, in the same order in every variant (no
-//! fused multiply-add: on the portable baseline it would be a call into the C library),
-//! and a table entry is the same value however it is fetched (scalar index, gather or
-//! in-register permute), so every instruction set gives the same bits.
+//! to |y| · 2.2e-16 in y, so the relative error grows with |a|: at most 7e-15 + 2.5e-16 ·
+//! |a| (under 1.9e-13 at a = −708), and under 6e-15 for |a| ≤ 2, where the terms that
+//! carry the probability mass lie. Results below the smallest normal double (a < ln
+//! 2^-1022 ≈ −708.40, including −∞) are returned as 0, an absolute error under 2.3e-308.
+//! NaN stays NaN. Only plain multiplies and adds are used, in the same order in every
+//! variant (no fused multiply-add: on the portable baseline it would be a call into the C
+//! library), and a table entry is the same value however it is fetched (scalar index,
+//! gather or in-register permute), so every instruction set gives the same bits.
 
 /// 16 log₂e: y = a · SCALE is a in units of 2^(1/16).
 pub(crate) const SCALE: f64 = 16.0 * std::f64::consts::LOG2_E;
