@@ -245,7 +245,7 @@ fn fast_probabilities_match_reference_to_1e12() {
 fn blocked_with_std_exp_reproduces_reference_bits() {
     let mut rng = ChaCha8Rng::seed_from_u64(3);
     let key = StreamKey::new(11, 2);
-    // Not a multiple of the block (1024) nor of the tile (128).
+    // Not a multiple of the block (1024) nor of the tile (64).
     let x = random_data(&mut rng, 5 * 1024 + 37);
     for &k in &[1usize, 7, 30] {
         let t = random_table(&mut rng, k);
