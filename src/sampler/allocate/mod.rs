@@ -10,8 +10,8 @@
 //! arithmetic, bit for bit.
 //!
 //! - [`reference`]: the straightforward loop, the yardstick for tests;
-//! - [`blocked`]: the fast kernel (register-blocked tiles, [`fastexp`]), written once over
-//!   `lanes` (vectors of 1, 2, 4 or 8 doubles);
+//! - [`blocked`]: the fast kernel (register-blocked tiles, [`fastexp`], [`fastln`]),
+//!   written once over `lanes` (vectors of 1, 2, 4 or 8 doubles);
 //! - [`dispatch`]: the instruction set chosen at run time;
 //! - [`parallel`]: blocks split over threads;
 //! - [`weighted`]: rows with integer frequency weights (reference arithmetic).
