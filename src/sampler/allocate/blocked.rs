@@ -1,9 +1,9 @@
 //! The fast allocation kernel: one block of observations at a time, in tiles of [`TILE`]
 //! observations, register-blocked: for each group of `W` observations (one vector of
-//! [`Lanes`]) the loop over components keeps the running maximum, the running sum and, in
+//! `Lanes`) the loop over components keeps the running maximum, the running sum and, in
 //! the pick, the count in registers, and the group's values lie contiguously (components ×
 //! lanes). The exp pass stores the running sums, which the pick compares with its
-//! uniform. Written once against [`Lanes`]; [`super::dispatch`] compiles it for each
+//! uniform. Written once against `Lanes`; [`super::dispatch`] compiles it for each
 //! instruction set.
 //!
 //! Arithmetic per (observation, component) is the reference's, in the same order: the

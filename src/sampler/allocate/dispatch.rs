@@ -1,6 +1,6 @@
 //! Runtime choice of instruction set for the blocked kernel: AVX-512 (8 lanes), AVX2 (4) or
 //! the portable build's baseline (SSE2, 2 lanes, on x86-64; one lane elsewhere), detected
-//! once per process. The kernel is one generic function over [`Lanes`], uses no fused
+//! once per process. The kernel is one generic function over `Lanes`, uses no fused
 //! multiply-add and sums in a fixed order, so every choice gives the same bits; the choice
 //! only changes the speed.
 

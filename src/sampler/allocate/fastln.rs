@@ -1,5 +1,5 @@
 //! A branch-free natural logarithm for the allocation step's sums s = Σ_k exp(t_k − max)
-//! ∈ [1, K], written once against [`Lanes`] so every instruction set gives the same bits
+//! ∈ [1, K], written once against `Lanes` so every instruction set gives the same bits
 //! (std's `ln` is a library call per observation, about an eighth of a sweep's time).
 //!
 //! s = 2^e · m with m ∈ [√½, √2) (e from the exponent bits of s/√½); ln m = 2 atanh z,
