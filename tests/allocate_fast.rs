@@ -1,13 +1,18 @@
 //! The fast allocation path against the straightforward reference
 //! (`mixband::sampler::allocate::reference`) and the fast exp against std's `exp`.
 //!
-//! Tolerances are ours (documented in docs/performance.md): fast exp relative error ≤ 1e-15
-//! where e^x is a normal double, absolute ≤ 2^-1022 below; allocation probabilities
-//! relative ≤ 1e-12 where the reference's probability is a normal double, absolute
-//! ≤ 2^-1022 below. The reference uses std's `exp` (Rust's libm binding), the yardstick.
+//! Tolerances are ours (documented in docs/performance.md): fast exp relative error
+//! ≤ 7e-15 + 2.5e-16 |x| where e^x is a normal double, absolute ≤ 2^-1022 below; fast ln
+//! absolute error ≤ 1e-15 · max(1, ln s) for s ≥ 1; allocation probabilities relative
+//! ≤ 1e-12 where the reference's probability is a normal double, absolute ≤ 2^-1022
+//! below; log-likelihood relative ≤ 1e-12. The reference uses std's `exp` and `ln`
+//! (Rust's libm binding), the yardstick; the ln and exp bounds are common practice for a
+//! double-precision kernel (no source), chosen well inside the 1e-12 the issue asks of
+//! the probabilities.
 
-use mixband::sampler::allocate::blocked::{probabilities, FastExp, StdExp};
+use mixband::sampler::allocate::dispatch::{exp_fast_in_place, kernel_probabilities};
 use mixband::sampler::allocate::fastexp::{exp_fast, MIN_NORMAL_ARG};
+use mixband::sampler::allocate::fastln::ln_fast_f64;
 use mixband::sampler::allocate::reference::terms;
 use mixband::sampler::allocate::{
     allocate_reference, allocate_with, loglik_reference, loglik_with, AllocOptions, ComponentTable,
@@ -25,8 +30,9 @@ fn rel(a: f64, b: f64) -> f64 {
     }
 }
 
-#[test]
-fn fast_exp_matches_std_exp() {
+/// Arguments for the exp checks: random in [−760, 0] and [−2, 0], edge values, and the
+/// rounding boundaries of the reduction (N = 16 a log₂e half-way between integers).
+fn exp_arguments() -> Vec<f64> {
     let mut rng = ChaCha8Rng::seed_from_u64(1);
     let mut xs: Vec<f64> = (0..200_000).map(|_| -rng.random::<f64>() * 760.0).collect();
     xs.extend((0..100_000).map(|_| -rng.random::<f64>() * 2.0));
@@ -39,20 +45,93 @@ fn fast_exp_matches_std_exp() {
         -708.0,
         -745.0,
         -745.2,
+        -1e6,
+        f64::NEG_INFINITY,
     ]);
-    // Round-to-nearest boundaries of n = x / ln 2.
-    xs.extend((1..1000).map(|n| -(n as f64 + 0.5) * std::f64::consts::LN_2));
-    let mut worst = 0.0f64;
-    for &x in &xs {
+    let step = std::f64::consts::LN_2 / 16.0;
+    xs.extend((1..16_400).map(|n| -(n as f64 + 0.5) * step));
+    xs
+}
+
+#[test]
+fn fast_exp_matches_std_exp() {
+    // Bound (docs/performance.md): relative 7e-15 + 2.5e-16 |x| where e^x is a normal
+    // double (the reduction's rounding grows with |x|: under 1.9e-13 at x = −708), and
+    // absolute 2^-1022 below.
+    let mut worst_small = 0.0f64;
+    let mut worst_scaled = 0.0f64;
+    for &x in &exp_arguments() {
         let (f, s) = (exp_fast(x), x.exp());
         if s >= f64::MIN_POSITIVE {
-            worst = worst.max(rel(f, s));
+            let e = rel(f, s);
+            assert!(
+                e <= 7e-15 + 2.5e-16 * x.abs(),
+                "x = {x}: {f} vs {s} ({e:e})"
+            );
+            if x >= -2.0 {
+                worst_small = worst_small.max(e);
+            }
+            worst_scaled = worst_scaled.max(e / (1.0 + x.abs()));
         } else {
             assert!((f - s).abs() <= f64::MIN_POSITIVE, "x = {x}: {f} vs {s}");
         }
     }
-    assert!(worst <= 1e-15, "worst relative error {worst:e}");
+    assert!(
+        worst_small <= 7e-15,
+        "worst relative error on [-2, 0]: {worst_small:e}"
+    );
+    println!("worst on [-2, 0]: {worst_small:e}; worst rel / (1 + |x|): {worst_scaled:e}");
     assert_eq!(exp_fast(f64::NEG_INFINITY), 0.0);
+    assert!(exp_fast(f64::NAN).is_nan());
+}
+
+#[test]
+fn fast_exp_is_the_same_for_every_instruction_set() {
+    let mut xs = exp_arguments();
+    xs.push(f64::NAN);
+    let want: Vec<u64> = xs.iter().map(|&x| exp_fast(x).to_bits()).collect();
+    // Lengths that are not a multiple of the vector width exercise the masked tails.
+    for len in [xs.len(), xs.len() - 3, 5] {
+        for simd in Simd::ALL.into_iter().filter(|s| s.available()) {
+            let mut got = xs[..len].to_vec();
+            exp_fast_in_place(simd, &mut got);
+            for (i, g) in got.iter().enumerate() {
+                assert_eq!(g.to_bits(), want[i], "{simd:?}: x = {}", xs[i]);
+            }
+        }
+    }
+}
+
+#[test]
+fn fast_ln_matches_std_ln() {
+    // Bound (docs/performance.md): absolute 1e-15 · max(1, ln s) for s ≥ 1; the kernel
+    // passes s = Σ_k exp(t_k − max) ∈ [1, K].
+    let mut rng = ChaCha8Rng::seed_from_u64(5);
+    let mut ss: Vec<f64> = (0..100_000)
+        .map(|_| 1.0 + rng.random::<f64>() * 63.0)
+        .collect();
+    ss.extend((0..100_000).map(|_| (rng.random::<f64>() * 700.0).exp()));
+    ss.extend([
+        1.0,
+        1.0 + f64::EPSILON,
+        std::f64::consts::SQRT_2,
+        2.0,
+        1e300,
+        f64::MAX,
+    ]);
+    // Just below and above each √2 · 2^e, where the reduction switches exponent.
+    for e in 0..60 {
+        let b = std::f64::consts::SQRT_2 * (e as f64).exp2();
+        ss.extend([b.next_down(), b, b.next_up()]);
+    }
+    let mut worst = 0.0f64;
+    for &s in &ss {
+        let (f, want) = (ln_fast_f64(s), s.ln());
+        let err = (f - want).abs() / want.max(1.0);
+        assert!(err <= 1e-15, "s = {s}: {f} vs {want} ({err:e})");
+        worst = worst.max(err);
+    }
+    println!("fast ln: worst absolute error / max(1, ln s): {worst:e}");
 }
 
 /// A random table: `k` components, some near the data, some far from every point.
@@ -124,8 +203,15 @@ fn fast_probabilities_match_reference_to_1e12() {
     for &k in &[1usize, 5, 30, 50] {
         let t = random_table(&mut rng, k);
         let x = random_data(&mut rng, 3000);
-        let fast = probabilities::<FastExp>(&x, &t);
+        let fast = kernel_probabilities(Simd::Scalar, ExpKind::Fast, &x, &t);
         let refp = reference_probabilities(&x, &t);
+        // Every instruction set computes the same bits.
+        for simd in Simd::ALL.into_iter().filter(|s| s.available()) {
+            assert!(
+                kernel_probabilities(simd, ExpKind::Fast, &x, &t) == fast,
+                "{simd:?}"
+            );
+        }
         for (pf, pr) in fast.iter().zip(&refp) {
             for (&a, &b) in pf.iter().zip(pr) {
                 if b >= f64::MIN_POSITIVE {
@@ -142,7 +228,12 @@ fn fast_probabilities_match_reference_to_1e12() {
             }
         }
         // With std's exp the blocked layout gives the reference's probabilities exactly.
-        assert_eq!(probabilities::<StdExp>(&x, &t), refp);
+        for simd in Simd::ALL.into_iter().filter(|s| s.available()) {
+            assert!(
+                kernel_probabilities(simd, ExpKind::Std, &x, &t) == refp,
+                "{simd:?}"
+            );
+        }
     }
     assert!(
         subnormal_seen > 0,
@@ -154,7 +245,7 @@ fn fast_probabilities_match_reference_to_1e12() {
 fn blocked_with_std_exp_reproduces_reference_bits() {
     let mut rng = ChaCha8Rng::seed_from_u64(3);
     let key = StreamKey::new(11, 2);
-    // Not a multiple of the block (1024) nor of the tile (128).
+    // Not a multiple of the block (1024) nor of the tile (64).
     let x = random_data(&mut rng, 5 * 1024 + 37);
     for &k in &[1usize, 7, 30] {
         let t = random_table(&mut rng, k);

@@ -9,15 +9,18 @@
 //! log-likelihood of the state it was given; [`loglik`] computes it alone with the same
 //! arithmetic, bit for bit.
 //!
-//! - [`reference`]: the straightforward loop, the yardstick for tests;
-//! - [`blocked`]: the fast kernel (structure-of-arrays tiles, [`fastexp`]);
+//! - [`reference`](mod@reference): the straightforward loop, the yardstick for tests;
+//! - [`blocked`]: the fast kernel (register-blocked tiles, [`fastexp`], [`fastln`]),
+//!   written once over `lanes` (vectors of 1, 2, 4 or 8 doubles);
 //! - [`dispatch`]: the instruction set chosen at run time;
-//! - [`parallel`]: blocks split over threads;
+//! - `parallel`: blocks split over threads;
 //! - [`weighted`]: rows with integer frequency weights (reference arithmetic).
 
 pub mod blocked;
 pub mod dispatch;
 pub mod fastexp;
+pub mod fastln;
+mod lanes;
 mod parallel;
 pub mod reference;
 mod types;
