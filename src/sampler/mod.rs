@@ -13,7 +13,6 @@ pub mod collapsed;
 #[doc(hidden)]
 pub mod components;
 pub mod concentration;
-mod fastlog;
 #[doc(hidden)]
 pub mod hyper;
 mod init;

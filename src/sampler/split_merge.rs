@@ -33,9 +33,9 @@ use rand::Rng;
 use statrs::function::gamma::ln_gamma;
 
 use super::allocate::fastexp::exp_fast;
+use super::allocate::fastln::{ln_fast_f64, ln_positive};
 use super::allocate::SuffStats;
 use super::collapsed::{log_marginal, log_predictive, predictive_terms, HalfSteps};
-use super::fastlog::ln_fast;
 use super::label_moves::{distinct_pair, log_label_prior};
 use crate::config::WeightsKind;
 use crate::model::{Prior, State};
@@ -293,18 +293,18 @@ fn sequential<R: Rng + ?Sized, S: Side>(
         let wb = lnb + log_predictive(prior.kernel, &tb, x[k]);
         // ln P(B) = wb − ln(e^wa + e^wb), computed stably.
         let (hi, lo) = if wa >= wb { (wa, wb) } else { (wb, wa) };
-        let log_norm = hi + ln_fast(1.0 + exp_fast(lo - hi));
+        let log_norm = hi + ln_fast_f64(1.0 + exp_fast(lo - hi));
         let goes_b = side.goes_b(k, wb - log_norm, rng);
         if goes_b {
             log_q += wb - log_norm;
             b.push(x[k]);
             tb = terms(&b);
-            lnb = ln_fast(b.stats.0 as f64);
+            lnb = ln_positive(b.stats.0 as f64);
         } else {
             log_q += wa - log_norm;
             a.push(x[k]);
             ta = terms(&a);
-            lna = ln_fast(a.stats.0 as f64);
+            lna = ln_positive(a.stats.0 as f64);
         }
         to_b.push(goes_b);
     }
