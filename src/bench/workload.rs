@@ -59,10 +59,12 @@ pub fn prepare(c: Case, chains: usize, warmup: usize, draws: usize, seed: u64) -
         csv.push_str(&crate::numfmt::fmt_f64(*v));
         csv.push('\n');
     }
+    // The vectorised conditional allocation at every N (the default switches to the
+    // collapsed scan up to 20 000 observations; its cost is in `cargo bench --bench mixing`).
     let config = format!(
         "[data]\nfile = \"synthetic.csv\"\ncolumn = \"x\"\n\n[model]\nkernel = \"location-scale\"\n\
          weights = \"stick-breaking\"\ncomponents = {}\n\n[sampler]\nchains = {chains}\nwarmup = {warmup}\n\
-         draws = {draws}\nseed = {seed}\n",
+         draws = {draws}\nseed = {seed}\nallocation = \"conditional\"\n",
         c.k
     );
     Prepared::from_text(
