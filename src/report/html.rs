@@ -160,15 +160,27 @@ fn metadata(out: &mut String, inp: &RunInputs) {
         (
             "model",
             format!(
-                "{} kernel, {} weights, K = {}",
-                c.kernel, c.weights, c.components
+                "{} kernel, {} weights ({}), K = {}",
+                c.kernel,
+                c.weights,
+                concentration_prior(c),
+                c.components
             ),
         ),
         (
             "sampling",
             format!(
-                "{} chains × {} kept draws (warm-up {}, thin {})",
-                c.chains, c.draws, c.warmup, c.thin
+                "{} chains × {} kept draws (warm-up {}, thin {}); {}",
+                c.chains,
+                c.draws,
+                c.warmup,
+                c.thin,
+                match c.allocation {
+                    crate::config::AllocationKind::Collapsed => {
+                        "collapsed allocation scan with split–merge moves"
+                    }
+                    crate::config::AllocationKind::Conditional => "conditional allocation step",
+                }
             ),
         ),
         ("draws used for the bands", inp.bands.draws_used.to_string()),
@@ -368,4 +380,20 @@ pub fn page(p: &PageParts<'_>) -> String {
     let _ = writeln!(out, "<pre>{}</pre>", html_escape(p.config_text));
     out.push_str("</main>\n</body>\n</html>\n");
     out
+}
+
+/// The weight prior's concentration as the report states it: fixed, or its Gamma prior.
+fn concentration_prior(c: &crate::config::RunConfig) -> String {
+    use crate::config::{HyperChoice, WeightsKind};
+    let p = &c.prior;
+    match (c.weights, p.delta_prior, p.alpha_prior) {
+        (WeightsKind::Dirichlet, HyperChoice::Fixed, _) => format!("δ = {}", p.dirichlet_delta),
+        (WeightsKind::Dirichlet, HyperChoice::Gamma, _) => {
+            format!("δ ~ Gamma({}, {})", p.delta_shape, p.delta_rate)
+        }
+        (WeightsKind::StickBreaking, _, HyperChoice::Fixed) => format!("α = {}", p.alpha),
+        (WeightsKind::StickBreaking, _, HyperChoice::Gamma) => {
+            format!("α ~ Gamma({}, {})", p.alpha_shape, p.alpha_rate)
+        }
+    }
 }
