@@ -21,7 +21,7 @@
 
 use mixband::config::{Kernel, WeightsKind};
 use mixband::model::{Concentration, Prior, State, VarScale};
-use mixband::sampler::collapsed::{collapsed_scan, collapsed_scan_plug_in};
+use mixband::sampler::collapsed::{collapsed_scan, scan};
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
 use statrs::distribution::{ChiSquared, ContinuousCDF};
@@ -156,11 +156,7 @@ fn scan_p_value(p: &Prior, plug_in: bool, seed: u64) -> f64 {
     let mut z = vec![0u32; X.len()];
     let mut rng = ChaCha8Rng::seed_from_u64(seed);
     for _ in 0..SCANS {
-        if plug_in {
-            collapsed_scan_plug_in(&X, &mut z, p, &s, &mut rng);
-        } else {
-            collapsed_scan(&X, &mut z, p, &s, &mut rng);
-        }
+        scan(&X, &mut z, p, &s, &mut rng, plug_in);
         counts[encode(&z)] += 1;
     }
     // Successive scans are correlated; thinning is avoided by pooling cells whose expected
@@ -282,7 +278,7 @@ const THIN: usize = 10;
 /// the move's own bookkeeping) against the exact posterior.
 fn split_merge_p_value(p: &Prior, faulty: bool, seed: u64) -> f64 {
     use mixband::sampler::collapsed::stats_from_labels;
-    use mixband::sampler::split_merge::{split_merge, split_merge_faulty};
+    use mixband::sampler::split_merge::{run, Labels};
     let s = state();
     let exact = exact_posterior(p, &s);
     let mut counts = vec![0u64; exact.len()];
@@ -291,11 +287,12 @@ fn split_merge_p_value(p: &Prior, faulty: bool, seed: u64) -> f64 {
     let mut rng = ChaCha8Rng::seed_from_u64(seed);
     let mut accepted = 0;
     for _ in 0..SCANS / 2 {
-        let t = if faulty {
-            split_merge_faulty(&X, &mut z, &mut stats, p, &s, THIN, &mut rng)
+        let labels = if faulty {
+            Labels::Ignored
         } else {
-            split_merge(&X, &mut z, &mut stats, p, &s, THIN, &mut rng)
+            Labels::Counted
         };
+        let t = run(&X, &mut z, &mut stats, p, &s, THIN, &mut rng, labels);
         accepted += t.splits_accepted + t.merges_accepted;
         counts[encode(&z)] += 1;
     }

@@ -45,7 +45,7 @@ use crate::model::{Prior, State};
 /// g(q) = q (normal) or g(q) = power · ln(1 + q) (Student-t).
 struct Predictive {
     half: HalfSteps,
-    /// Fault injection for the joint-distribution test (see [`collapsed_scan_plug_in`]).
+    /// Fault injection for the exact tests (see [`scan`]).
     plug_in: bool,
     c: Vec<f64>,
     loc: Vec<f64>,
@@ -321,21 +321,11 @@ pub fn collapsed_scan<R: Rng + ?Sized>(
     scan(x, z, prior, state, rng, false)
 }
 
-/// [`collapsed_scan`] with a deliberate fault for the joint-distribution test: the
-/// predictive leaves out the uncertainty of the component mean (σ² instead of σ² + v;
-/// b_n/a_n instead of b_n (κ_n + 1)/(a_n κ_n)), a plug-in predictive.
+/// [`collapsed_scan`], with a deliberate fault when `fault_plug_in` is set, for the
+/// exact tests that must reject it: the predictive leaves out the uncertainty of the
+/// component mean (σ² instead of σ² + v; b_n/a_n instead of b_n (κ_n + 1)/(a_n κ_n)).
 #[doc(hidden)]
-pub fn collapsed_scan_plug_in<R: Rng + ?Sized>(
-    x: &[f64],
-    z: &mut [u32],
-    prior: &Prior,
-    state: &State,
-    rng: &mut R,
-) -> SuffStats {
-    scan(x, z, prior, state, rng, true)
-}
-
-fn scan<R: Rng + ?Sized>(
+pub fn scan<R: Rng + ?Sized>(
     x: &[f64],
     z: &mut [u32],
     prior: &Prior,

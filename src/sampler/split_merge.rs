@@ -81,10 +81,11 @@ fn log_weights_prior(prior: &Prior, concentration: f64, n: &[u64]) -> f64 {
     }
 }
 
-/// Whether to leave out the label-choice probabilities (the joint-distribution
-/// fault of [`split_merge_faulty`]).
+/// Whether to leave out the label-choice probabilities (the exact test's fault, see
+/// [`run`]).
+#[doc(hidden)]
 #[derive(Clone, Copy, PartialEq, Eq)]
-enum Labels {
+pub enum Labels {
     Counted,
     Ignored,
 }
@@ -103,23 +104,12 @@ pub fn split_merge<R: Rng + ?Sized>(
     run(x, z, stats, prior, state, proposals, rng, Labels::Counted)
 }
 
-/// [`split_merge`] with the label-choice probabilities P(l) and P′(c_j) left out of the
-/// acceptance ratios, for the test that must reject it.
+/// [`split_merge`], with the label-choice probabilities P(l) and P′(c_j) left out of the
+/// acceptance ratios when `labels` is [`Labels::Ignored`], for the exact test that must
+/// reject it.
 #[doc(hidden)]
-pub fn split_merge_faulty<R: Rng + ?Sized>(
-    x: &[f64],
-    z: &mut [u32],
-    stats: &mut SuffStats,
-    prior: &Prior,
-    state: &State,
-    proposals: usize,
-    rng: &mut R,
-) -> SplitMergeTally {
-    run(x, z, stats, prior, state, proposals, rng, Labels::Ignored)
-}
-
 #[allow(clippy::too_many_arguments)]
-fn run<R: Rng + ?Sized>(
+pub fn run<R: Rng + ?Sized>(
     x: &[f64],
     z: &mut [u32],
     stats: &mut SuffStats,
