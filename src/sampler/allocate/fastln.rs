@@ -62,14 +62,18 @@ pub fn ln_fast_f64(s: f64) -> f64 {
     ln_fast(s)
 }
 
-/// ln y for any normal y > 0 (the collapsed scan's variances and counts): below √½ as
-/// −ln(1/y), whose rounding of 1/y adds at most about 1.1e-16 to the absolute error.
+/// ln y for any y (the collapsed scan's variances, counts and concentrations): for
+/// y ≥ √½ the fast series, for normal y below it −ln(1/y), whose rounding of 1/y adds at
+/// most about 1.1e-16 to the absolute error; zero, subnormal, infinite and NaN inputs (a
+/// concentration drawn absurdly small, say) go to std's `ln`.
 #[inline(always)]
 pub fn ln_positive(y: f64) -> f64 {
-    if y >= std::f64::consts::FRAC_1_SQRT_2 {
+    if y >= std::f64::consts::FRAC_1_SQRT_2 && y <= f64::MAX {
         ln_fast_f64(y)
-    } else {
+    } else if y >= f64::MIN_POSITIVE && y < std::f64::consts::FRAC_1_SQRT_2 {
         -ln_fast_f64(1.0 / y)
+    } else {
+        y.ln()
     }
 }
 
