@@ -68,9 +68,10 @@ pub fn ln_fast_f64(s: f64) -> f64 {
 /// concentration drawn absurdly small, say) go to std's `ln`.
 #[inline(always)]
 pub fn ln_positive(y: f64) -> f64 {
-    if y >= std::f64::consts::FRAC_1_SQRT_2 && y <= f64::MAX {
+    use std::f64::consts::FRAC_1_SQRT_2;
+    if (FRAC_1_SQRT_2..=f64::MAX).contains(&y) {
         ln_fast_f64(y)
-    } else if y >= f64::MIN_POSITIVE && y < std::f64::consts::FRAC_1_SQRT_2 {
+    } else if (f64::MIN_POSITIVE..FRAC_1_SQRT_2).contains(&y) {
         -ln_fast_f64(1.0 / y)
     } else {
         y.ln()
