@@ -10,19 +10,15 @@
 mod common;
 
 use std::path::Path;
-use std::sync::atomic::AtomicBool;
 
-use common::{batch_means_se, mean, scratch_dir};
+use common::{batch_means_se, mean, run_to_density, scratch_dir};
 use mixband::config::MissingPolicy;
 use mixband::data::{load_weighted_from_reader, DataSummary, Standardised};
 use mixband::model::State;
-use mixband::run::{execute, ExecOptions, Mode, Prepared};
 use mixband::sampler::allocate::{
     allocate_reference, allocate_weighted, loglik_reference, loglik_weighted, ComponentTable,
 };
 use mixband::sampler::rng::StreamKey;
-use mixband::store::{read_run_draws, Manifest, RunLayout};
-use mixband::summary::{linspace, DensityDraws};
 use statrs::distribution::{Continuous, StudentsT};
 
 /// An invented tabulated sample: (value, count); n = 60, two bumps.
@@ -208,24 +204,10 @@ fn run(tag: &str, csv: &str, weights: bool, body: &str, from: f64, to: f64) -> R
     let config = format!(
         "[data]\nfile = \"data.csv\"\ncolumn = \"y\"\n{w}\n{body}\n[grid]\nfrom = {from}\nto = {to}\npoints = {GRID_POINTS}\n"
     );
-    let cfg_path = dir.join("run.toml");
-    std::fs::write(&cfg_path, config).unwrap();
-    let prep = Prepared::from_config_file(&cfg_path).unwrap();
+    let (prep, draws, dens) = run_to_density(&dir, &config, (from, to, GRID_POINTS));
     assert_eq!(prep.data.counts.is_some(), weights);
     assert_eq!(prep.record.n, 60);
-    let out = dir.join("run");
-    let stop = AtomicBool::new(false);
-    let opts = ExecOptions {
-        threads: 2,
-        quiet: true,
-        stop: &stop,
-    };
-    execute(&prep, &out, Mode::Fresh { force: false }, opts, &[]).unwrap();
-    let layout = RunLayout::new(&out);
-    let manifest = Manifest::read(&layout.manifest()).unwrap();
-    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids()).unwrap();
-    let grid = linspace(from, to, GRID_POINTS);
-    let dens = DensityDraws::new(&draws, &grid);
+    let grid = dens.grid.clone();
     let chains = dens.chains as f64;
     let mut m = Vec::new();
     let mut se = Vec::new();

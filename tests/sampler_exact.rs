@@ -8,12 +8,9 @@
 mod common;
 
 use std::path::Path;
-use std::sync::atomic::AtomicBool;
 
-use common::{batch_means_se, scratch_dir};
-use mixband::run::{execute, ExecOptions, Mode, Prepared};
-use mixband::store::{read_run_draws, Manifest, RunLayout};
-use mixband::summary::{linspace, Bands, DensityDraws};
+use common::{batch_means_se, run_to_density, scratch_dir};
+use mixband::summary::{linspace, Bands};
 use statrs::distribution::{Continuous, StudentsT};
 
 /// An invented sample (n = 12).
@@ -40,22 +37,8 @@ fn run_pipeline(
     let config = format!(
         "[data]\nfile = \"data.csv\"\ncolumn = \"y\"\n\n{config_body}\n[grid]\nfrom = {from}\nto = {to}\npoints = {GRID_POINTS}\n"
     );
-    let cfg_path = dir.join("run.toml");
-    std::fs::write(&cfg_path, config).unwrap();
-    let prep = Prepared::from_config_file(&cfg_path).unwrap();
-    let run = dir.join("run");
-    let stop = AtomicBool::new(false);
-    let opts = ExecOptions {
-        threads: 2,
-        quiet: true,
-        stop: &stop,
-    };
-    execute(&prep, &run, Mode::Fresh { force: false }, opts, &[]).unwrap();
-    let layout = RunLayout::new(&run);
-    let manifest = Manifest::read(&layout.manifest()).unwrap();
-    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids()).unwrap();
-    let grid = linspace(from, to, GRID_POINTS);
-    let dens = DensityDraws::new(&draws, &grid);
+    let (prep, _draws, dens) = run_to_density(&dir, &config, (from, to, GRID_POINTS));
+    let grid = dens.grid.clone();
     let bands = Bands::new(&dens, &prep.config.levels);
     assert_eq!(dens.chains, CHAINS);
     let se = (0..grid.len())

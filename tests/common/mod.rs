@@ -100,3 +100,36 @@ pub fn scratch_dir(tag: &str) -> PathBuf {
     std::fs::create_dir_all(&dir).unwrap();
     dir
 }
+
+/// Writes `config` (with `data.csv` already in `dir`) to `dir/run.toml`, runs it to
+/// completion into `dir/run` on two threads, and returns the prepared run, its stored
+/// draws and the density draws on `points` grid points from `from` to `to`.
+pub fn run_to_density(
+    dir: &std::path::Path,
+    config: &str,
+    (from, to, points): (f64, f64, usize),
+) -> (
+    mixband::run::Prepared,
+    mixband::store::RunDraws,
+    mixband::summary::DensityDraws,
+) {
+    use mixband::run::{execute, ExecOptions, Mode, Prepared};
+    use mixband::store::{read_run_draws, Manifest, RunLayout};
+    let cfg_path = dir.join("run.toml");
+    std::fs::write(&cfg_path, config).unwrap();
+    let prep = Prepared::from_config_file(&cfg_path).unwrap();
+    let out = dir.join("run");
+    let stop = std::sync::atomic::AtomicBool::new(false);
+    let opts = ExecOptions {
+        threads: 2,
+        quiet: true,
+        stop: &stop,
+    };
+    execute(&prep, &out, Mode::Fresh { force: false }, opts, &[]).unwrap();
+    let layout = RunLayout::new(&out);
+    let manifest = Manifest::read(&layout.manifest()).unwrap();
+    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids()).unwrap();
+    let grid = mixband::summary::linspace(from, to, points);
+    let dens = mixband::summary::DensityDraws::new(&draws, &grid);
+    (prep, draws, dens)
+}
