@@ -140,11 +140,15 @@ pub fn run<R: Rng + ?Sized>(
         } else {
             tally.merges_proposed += 1;
         }
-        members.clear();
-        members.extend(
-            (0..n_obs)
-                .filter(|&k| k != i && k != j && (z[k] as usize == ci || z[k] as usize == cj)),
-        );
+        // The other members of the component(s) involved, in index order; collected only
+        // when a sequential pass will run (not for a merge rejected on its bound).
+        let collect = |members: &mut Vec<usize>| {
+            members.clear();
+            members.extend(
+                (0..n_obs)
+                    .filter(|&k| k != i && k != j && (z[k] as usize == ci || z[k] as usize == cj)),
+            );
+        };
         let log_prior_now = log_weights_prior(prior, state.concentration, &stats.n);
         let mut n_after = stats.n.clone();
 
@@ -173,6 +177,7 @@ pub fn run<R: Rng + ?Sized>(
             if log_u >= bound {
                 continue;
             }
+            collect(&mut members);
             let (_, _, log_q) = sequential(
                 x,
                 (i, j),
@@ -195,6 +200,7 @@ pub fn run<R: Rng + ?Sized>(
         }
 
         // Split.
+        collect(&mut members);
         let (a, b, log_q) = sequential(
             x,
             (i, j),
