@@ -10,7 +10,9 @@
 //!   with T_k = Σ_{j>k} n_j (Ishwaran & James 2001, eq. for the generalised Dirichlet);
 //! - location-scale kernel, normal-inverse-gamma prior: the marginal likelihood of a
 //!   component's points Γ(a_n)/Γ(a) b^a/b_n^{a_n} (κ/κ_n)^{1/2} (2π)^{−n/2}
-//!   (Murphy 2007, "Conjugate Bayesian analysis of the Gaussian distribution", eq. 95);
+//!   (Murphy 2007, "Conjugate Bayesian analysis of the Gaussian distribution"; the
+//!   formula written from memory, and cross-checked by the sampler's unit test against the
+//!   chain rule of statrs-checked predictives);
 //! - location kernel, μ_k ~ N(m, s²), common σ²: the points are jointly normal with
 //!   covariance σ² I + s² 11ᵀ, evaluated with the Sherman–Morrison inverse and the matrix
 //!   determinant lemma (common practice, no source).

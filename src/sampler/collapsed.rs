@@ -22,7 +22,8 @@
 //! - location-scale kernel, normal-inverse-gamma (κ, m, a, b): κ_n = κ + n_k,
 //!   m_n = (κ m + S1)/κ_n, a_n = a + n_k/2, b_n = b + SS/2 + κ n_k (x̄ − m)²/(2κ_n);
 //!   x ~ Student-t with 2a_n degrees of freedom, location m_n, scale² b_n(κ_n + 1)/(a_n κ_n)
-//!   (Murphy 2007, "Conjugate Bayesian analysis of the Gaussian distribution", §7.6).
+//!   (Murphy 2007, "Conjugate Bayesian analysis of the Gaussian distribution", §7.6; the
+//!   section number from memory; the density is checked against statrs' Student-t below).
 //!
 //! Prior weight of component k given the other allocations n (i left out):
 //! - Dirichlet(δ): n_k + δ;
@@ -200,7 +201,8 @@ pub(crate) fn predictive_terms(
 
 /// ln of the marginal likelihood of a component's points from their `(n, sum, sum of
 /// squares)`, in closed form: location-scale, Γ(a_n)/Γ(a) b^a/b_n^{a_n} (κ/κ_n)^{1/2}
-/// (2π)^{−n/2} (Murphy 2007, eq. 95); location (σ² given), the points jointly normal with
+/// (2π)^{−n/2} (Murphy 2007, equation number from memory; checked against the chain rule
+/// of predictives below); location (σ² given), the points jointly normal with
 /// covariance σ² I + s² 11ᵀ (Sherman–Morrison and the determinant lemma).
 pub(crate) fn log_marginal(prior: &Prior, state: &State, (n, sum, sumsq): (u64, f64, f64)) -> f64 {
     if n == 0 {
