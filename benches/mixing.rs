@@ -110,6 +110,12 @@ fn variants() -> Vec<Variant> {
         v("collapsed dirichlet d=1 K=10", dir, fixed, coll),
         v("defaults: collapsed dirichlet d~G(10,10K) K=10", "", "", ""),
         v("collapsed stick K=25 moves", stick, "", coll),
+        v(
+            "collapsed stick K=25 a~G(2,4)",
+            stick,
+            "alpha_shape = 2\nalpha_rate = 4",
+            coll,
+        ),
     ]
 }
 
@@ -253,6 +259,7 @@ fn main() {
     let warmup = env_usize("MIXING_WARMUP", 2000);
     let draws = env_usize("MIXING_DRAWS", 2000);
     let only = std::env::var("MIXING_ONLY").unwrap_or_default();
+    let repeats = env_usize("MIXING_REPEATS", 1).max(1);
     println!(
         "mixing: n = 500, 4 chains x {draws} kept draws after {warmup} warm-up, 200-point grid"
     );
@@ -277,16 +284,18 @@ fn main() {
             if !label.contains(&only) {
                 continue;
             }
-            let text = format!(
+            for r in 0..repeats {
+                let text = format!(
                 "[data]\nfile = \"bench.csv\"\ncolumn = \"value\"\n[model]\n{}\n[prior]\n{}\n[sampler]\nchains = 4\nwarmup = {warmup}\ndraws = {draws}\nseed = {}\n{}\n",
                 v.model,
                 v.prior,
-                77 + i,
+                77 + i + 1000 * r,
                 v.sampler
             );
-            let prep = Prepared::from_text(&text, "bench", Path::new("."), Some(&csv))
-                .expect("bench config");
-            print_row(&label, &run(&prep));
+                let prep = Prepared::from_text(&text, "bench", Path::new("."), Some(&csv))
+                    .expect("bench config");
+                print_row(&label, &run(&prep));
+            }
         }
     }
     if "demo".contains(&only) || only.is_empty() {

@@ -21,12 +21,14 @@ use common::{batch_means_se, bonferroni_z, mean, var};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::dist::log_beta;
 use mixband::model::{draw_from_prior, simulate_data, Concentration, Prior, State, VarScale};
+use mixband::sampler::allocate::SuffStats;
 use mixband::sampler::allocate::{allocate, loglik, ComponentTable};
 use mixband::sampler::components::update_components;
 use mixband::sampler::concentration::update_concentration_given_counts;
 use mixband::sampler::hyper::{update_concentration, update_var_scale};
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::sweep;
+use mixband::sampler::var_scale::{update_var_scale_given_stats, update_var_scale_with};
 use mixband::sampler::weights::update_weights;
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -84,6 +86,9 @@ enum Kernelised {
     /// The rebuilt sweep with stick-breaking v_k | z ~ Beta(1 + n_k, α + Σ_{j≥k} n_j): the
     /// tail count wrongly includes component k itself.
     WrongStickTail,
+    /// The rebuilt sweep with b drawn from its marginal conditional without the
+    /// κ n_k (x̄_k − m)²/(2κ_n) part of C_k: the component means' prior forgotten.
+    WrongVarScaleMarginal,
 }
 
 fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &StreamKey, t: u64) {
@@ -101,6 +106,11 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
     } else {
         update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
     }
+    if how == Kernelised::WrongVarScaleMarginal {
+        update_var_scale_with(prior, &alloc.stats, state, &mut rng, wrong_var_scale_target);
+    } else {
+        update_var_scale_given_stats(prior, &alloc.stats, state, &mut rng);
+    }
     if how == Kernelised::WrongVarShape {
         let wrong = Prior {
             var_shape: prior.var_shape + 0.5,
@@ -112,6 +122,25 @@ fn step(how: Kernelised, x: &[f64], prior: &Prior, state: &mut State, key: &Stre
     }
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
+}
+
+/// ln p(ln b | z, x) of src/sampler/var_scale.rs with C_k = SS_k/2 alone.
+fn wrong_var_scale_target(
+    prior: &Prior,
+    stats: &SuffStats,
+    shape: f64,
+    rate: f64,
+    eta: f64,
+) -> f64 {
+    let a = prior.var_shape;
+    let mut s = shape * eta - rate * eta.exp();
+    for j in (0..stats.n.len()).filter(|&j| stats.n[j] > 0) {
+        let nk = stats.n[j] as f64;
+        let xbar = stats.sum[j] / nk;
+        let c = 0.5 * (stats.sumsq[j] - nk * xbar * xbar).max(0.0);
+        s += a * eta - (a + 0.5 * nk) * (eta.exp() + c).ln();
+    }
+    s
 }
 
 /// The stick-breaking weight update of src/sampler/weights.rs with the off-by-one tail.
@@ -302,6 +331,29 @@ fn geweke_rejects_wrong_variance_shape() {
         assert!(
             worst > crit,
             "{kernel:?} x {weights:?}: the wrong variance shape went undetected (max |z| {worst:.2} < {crit:.2}): {zs:?}"
+        );
+    }
+}
+
+/// The location-scale kernel's b drawn from a marginal conditional that forgets the
+/// component means' prior is rejected (the location kernel does not use that step).
+#[test]
+fn geweke_rejects_wrong_var_scale_marginal() {
+    for (i, weights) in [WeightsKind::Dirichlet, WeightsKind::StickBreaking]
+        .into_iter()
+        .enumerate()
+    {
+        let p = prior(Kernel::LocationScale, weights);
+        let zs = geweke_z(
+            &p,
+            M_FAULT,
+            71 + i as u64,
+            Kernelised::WrongVarScaleMarginal,
+        );
+        let (worst, crit) = verdict(&zs);
+        assert!(
+            worst > crit,
+            "location-scale x {weights:?}: the wrong b conditional went undetected (max |z| {worst:.2} < {crit:.2}): {zs:?}"
         );
     }
 }

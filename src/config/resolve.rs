@@ -361,8 +361,8 @@ pub fn resolve(
         delta_rate: delta_rate.unwrap_or(10.0 * components as f64),
         alpha_prior: p.alpha_prior.unwrap_or(HyperChoice::Gamma),
         alpha: alpha.unwrap_or(1.0),
-        alpha_shape: alpha_shape.unwrap_or(1.0),
-        alpha_rate: alpha_rate.unwrap_or(1.0),
+        alpha_shape: alpha_shape.unwrap_or(2.0),
+        alpha_rate: alpha_rate.unwrap_or(4.0),
     };
     // Data-derived defaults must be usable numbers; the data checks keep the range within
     // 1e±152 so they are, but a user override next to extreme data might not be.

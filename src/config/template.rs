@@ -34,8 +34,8 @@ components = 10               # K; default 10 for dirichlet, 25 for stick-breaki
 # delta_rate = 100.0          # (default: 10 K, prior mean 1/K; Malsiner-Walli et al. 2016)
 # alpha_prior = "gamma"       # stick-breaking concentration: "fixed" or "gamma"
 # alpha = 1.0                 # alpha when fixed
-# alpha_shape = 1.0           # alpha ~ Gamma(shape, rate)
-# alpha_rate = 1.0
+# alpha_shape = 2.0           # alpha ~ Gamma(shape, rate), prior mean 0.5 (docs/model.md)
+# alpha_rate = 4.0
 
 [sampler]
 chains = 4

@@ -1,7 +1,8 @@
 //! Full conditionals of the hyperparameters.
 //!
-//! Variance scale, b ~ Gamma(g, h) with σ_j² ~ IG(a, b) for J variances:
-//! b | σ² ~ Gamma(g + J a, h + Σ_j 1/σ_j²).
+//! Variance scale of the location kernel, b ~ Gamma(g, h) with its one σ² ~ IG(a, b):
+//! b | σ² ~ Gamma(g + a, h + 1/σ²). (The location-scale kernel's b is drawn with the
+//! component parameters integrated out, before them: see `var_scale`.)
 //! Stick-breaking concentration, α ~ Gamma(a_α, b_α) with v_k ~ Beta(1, α), k < K:
 //! α | v ~ Gamma(a_α + K − 1, b_α − Σ_{k<K} ln(1 − v_k)) (Ishwaran & James 2001, §5.3).
 
@@ -22,15 +23,12 @@ pub fn pin_fixed(prior: &Prior, state: &mut State) {
     }
 }
 
+/// b | σ² for the location kernel; does nothing for the location-scale kernel, whose b is
+/// drawn by [`super::var_scale::update_var_scale_given_stats`].
 pub fn update_var_scale<R: Rng + ?Sized>(prior: &Prior, state: &mut State, rng: &mut R) {
-    if let VarScale::Gamma { shape, rate } = prior.var_scale {
-        let vars: &[f64] = match prior.kernel {
-            Kernel::Location => &state.var[..1],
-            Kernel::LocationScale => &state.var,
-        };
-        let inv_sum: f64 = vars.iter().map(|v| 1.0 / v).sum();
-        let j = vars.len() as f64;
-        state.var_scale = gamma_rate(shape + j * prior.var_shape, rate + inv_sum, rng);
+    if let (Kernel::Location, VarScale::Gamma { shape, rate }) = (prior.kernel, prior.var_scale) {
+        let v = state.var[0];
+        state.var_scale = gamma_rate(shape + prior.var_shape, rate + 1.0 / v, rng);
     }
 }
 

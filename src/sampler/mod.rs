@@ -18,8 +18,10 @@ pub mod hyper;
 mod init;
 pub mod label_moves;
 pub mod rng;
+mod slice;
 pub mod split_merge;
 mod sweep;
+pub mod var_scale;
 #[doc(hidden)]
 pub mod weights;
 

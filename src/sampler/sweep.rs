@@ -11,12 +11,13 @@ use super::split_merge::split_merge;
 
 /// Split–merge proposals per collapsed sweep; each costs O(size of the components
 /// involved), against O(N K) for the scan.
-pub const SPLIT_MERGE_PROPOSALS: usize = 10;
+pub const SPLIT_MERGE_PROPOSALS: usize = 20;
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
 use super::label_moves::{label_moves, label_moves_counts, MoveRatios, MoveTally, EXACT};
 use super::rng::StreamKey;
+use super::var_scale::update_var_scale_given_stats;
 use super::weights::update_weights;
 use crate::config::WeightsKind;
 use crate::model::{Prior, State};
@@ -116,6 +117,7 @@ pub fn sweep_opts(
     let mut rng = key.sweep_rng(index);
     update_concentration_given_counts(prior, &alloc.stats.n, state, &mut rng);
     update_weights(prior.weights, &alloc.stats.n, state, &mut rng);
+    update_var_scale_given_stats(prior, &alloc.stats, state, &mut rng);
     update_components(prior, &alloc.stats, state, &mut rng);
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
