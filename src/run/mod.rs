@@ -15,4 +15,6 @@ pub use outputs::{
     summary_file, write_bands, write_summaries, BandsFile, SummaryFile, QUANTILE_PROBS,
 };
 pub use prepare::{sha256_hex, Prepared};
-pub use summarise::{summarise_stored, Summaries, SummaryPlan, MIN_COLUMNS, WINDOW_BUDGET_BYTES};
+pub use summarise::{
+    summarise_stored, window_width, Summaries, SummaryPlan, MIN_COLUMNS, WINDOW_BUDGET_BYTES,
+};

@@ -91,8 +91,8 @@ impl CurveBands {
     }
 }
 
-/// The default window width for `draws` draws in all.
-fn default_width(draws: usize) -> usize {
+/// The default window width (columns per reading of the tables) for `draws` draws in all.
+pub fn window_width(draws: usize) -> usize {
     (WINDOW_BUDGET_BYTES / (8 * draws.max(1))).max(MIN_COLUMNS)
 }
 
@@ -118,7 +118,7 @@ pub fn summarise_stored(
     }
     let width = plan
         .columns_per_pass
-        .unwrap_or_else(|| default_width(draws))
+        .unwrap_or_else(|| window_width(draws))
         .max(1);
 
     let mut dens = plan.levels.map(|l| CurveBands::new(grid, l, draws));
