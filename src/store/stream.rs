@@ -181,3 +181,78 @@ impl StoredChains {
         })
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::store::draws::{header, parse_chain};
+
+    fn temp_file(name: &str, text: &str) -> PathBuf {
+        let p =
+            std::env::temp_dir().join(format!("mixband-stream-{}-{name}.csv", std::process::id()));
+        std::fs::write(&p, text).unwrap();
+        p
+    }
+
+    fn read_all(path: &Path) -> Result<Vec<DrawRow>> {
+        let mut r = RowReader::open(path)?;
+        let mut rows = Vec::new();
+        while let Some(row) = r.next_row()? {
+            rows.push(row.clone());
+        }
+        Ok(rows)
+    }
+
+    #[test]
+    fn row_reader_reads_what_parse_chain_reads() {
+        // The streaming reader and the whole-text parser follow one rule (common practice,
+        // no source): complete rows only, CRLF endings accepted, broken rows refused with
+        // the same message.
+        let h = header(2);
+        let cases = [
+            format!("{h}1,-3.5,2,1,0.5,0,1,0.5,2,3\n2,-3.25,1,1,0.25,0,1,0.75,2,3\n3,-3.1,1,"),
+            format!("{h}1,-3.5,2,1,0.5,0,1,0.5,2,3\r\n2,-3.25,1,1,0.25,0,1,0.75,2,3\r\n"),
+            format!("{h}1,-3.5,2,1,0.5,0,1\n2,-3.25,1,1,0.25,0,1,0.75,2,3\n"),
+            format!("{h}1,-3.5,2,1,0.5,0,1,0.5,2,inf\n"),
+            h.trim_end().to_string(),
+        ];
+        for (i, text) in cases.iter().enumerate() {
+            let p = temp_file(&format!("case{i}"), text);
+            let origin = p.display().to_string();
+            let want = parse_chain(text, &origin, 1).map(|c| c.rows);
+            let got = read_all(&p);
+            match (&got, &want) {
+                (Ok(a), Ok(b)) => assert_eq!(a, b, "case {i}"),
+                (Err(a), Err(b)) => assert_eq!(a.to_string(), b.to_string(), "case {i}"),
+                _ => panic!("case {i}: {got:?} against {want:?}"),
+            }
+            std::fs::remove_file(&p).unwrap();
+        }
+    }
+
+    #[test]
+    fn columns_are_laid_out_chain_after_chain_and_cut_to_len() {
+        let h = header(1);
+        let a = temp_file(
+            "cola",
+            &format!("{h}1,-1,1,1,1,10,1\n2,-2,1,1,1,20,1\n3,-3,1,1,1,30,1\n"),
+        );
+        let b = temp_file("colb", &format!("{h}1,-4,1,1,1,40,1\n2,-5,1,1,1,50,1\n"));
+        let s = StoredChains {
+            paths: vec![a.clone(), b.clone()],
+            ids: vec![1, 2],
+        };
+        let cols = s
+            .columns(2, 2, |r, out| {
+                out[0] = r.loglik;
+                out[1] = r.mean[0];
+            })
+            .unwrap();
+        assert_eq!(cols.pooled(0), &[-1.0, -2.0, -4.0, -5.0]);
+        assert_eq!(cols.per_chain(1), vec![vec![10.0, 20.0], vec![40.0, 50.0]]);
+        // A table shorter than asked for is refused, not padded.
+        assert!(s.columns(3, 1, |r, out| out[0] = r.loglik).is_err());
+        std::fs::remove_file(&a).unwrap();
+        std::fs::remove_file(&b).unwrap();
+    }
+}
