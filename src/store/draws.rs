@@ -320,7 +320,7 @@ pub fn parse_chain(text: &str, origin: &str, chain: u64) -> Result<ChainDraws> {
 pub(super) fn parse_header(head: &str, origin: &str) -> Result<(usize, usize)> {
     let fields = head.split(',').count();
     if fields < 7
-        || (fields - 4) % 3 != 0
+        || !(fields - 4).is_multiple_of(3)
         || !head.starts_with("iteration,loglik,occupied,concentration")
     {
         return Err(Error::input(format!(
