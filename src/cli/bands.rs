@@ -5,10 +5,12 @@ use std::path::Path;
 use crate::config::resolve_check_levels;
 use crate::data::Transform;
 use crate::error::{Error, Result};
-use crate::gate::{assess, DiagnosticsReport, GateSpec};
-use crate::run::{write_bands, write_summaries, Prepared};
-use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
-use crate::summary::{linspace, Bands, DensityDraws};
+use crate::gate::{DiagnosticsReport, GateSpec};
+use crate::run::{
+    summarise_stored, summary_file, write_bands, write_summaries, Prepared, Summaries, SummaryPlan,
+};
+use crate::store::{Manifest, RunLayout, RunStatus, ScalarDraws, StoredChains};
+use crate::summary::{linspace, Bands, DrawFeatures};
 
 /// Reads the draws of a run, assesses them against the convergence gate, and writes
 /// diagnostics.json and bands.csv / bands.json (flagged with the verdict) on the configured
@@ -16,51 +18,57 @@ use crate::summary::{linspace, Bands, DensityDraws};
 pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<DiagnosticsReport> {
     let c = &prep.config;
     let manifest = Manifest::read(&layout.manifest())?;
-    let (draws, dens) = densities(
-        layout,
-        &manifest,
-        c.grid_from,
-        c.grid_to,
-        c.grid_points,
-        c.transform,
-    )?;
-    let report = assess(
-        &draws,
-        &dens,
-        &GateSpec::from_config(c, manifest.status == RunStatus::Complete),
-    );
+    let grid = linspace(c.grid_from, c.grid_to, c.grid_points);
+    let spec = GateSpec::from_config(c, manifest.status == RunStatus::Complete);
+    let s = summaries(layout, &manifest, &grid, &c.levels, c.transform, Some(spec))?;
+    let report = s
+        .report
+        .ok_or_else(|| Error::internal("the gate was not assessed"))?;
     report.write(layout)?;
-    let bands = Bands::new(&dens, &c.levels);
-    write_bands(layout, &bands, Some(report.passed))?;
-    write_summaries(
-        layout,
-        &draws,
-        &dens,
-        &bands,
-        c.transform,
-        Some(report.passed),
-    )?;
+    write_all(layout, s.bands, s.cdf, s.features, Some(report.passed))?;
     Ok(report)
 }
 
-fn densities(
+/// Streams the stored draws (refused when there are none yet) into the summaries.
+fn summaries(
     layout: &RunLayout,
     manifest: &Manifest,
-    from: f64,
-    to: f64,
-    points: usize,
+    grid: &[f64],
+    levels: &[f64],
     t: Transform,
-) -> Result<(RunDraws, DensityDraws)> {
-    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
-    if draws.min_len() == 0 {
+    gate: Option<GateSpec>,
+) -> Result<Summaries> {
+    let stored = StoredChains::new(&layout.draws_dir(), &manifest.chain_ids());
+    let scalars = ScalarDraws::read(&stored)?;
+    if scalars.min_len() == 0 {
         return Err(Error::input(format!(
             "{}: no draws stored yet",
             layout.root.display()
         )));
     }
-    let grid = linspace(from, to, points);
-    let dens = DensityDraws::new_on(&draws, &grid, t);
-    Ok((draws, dens))
+    let plan = SummaryPlan {
+        grid,
+        transform: t,
+        levels: Some(levels),
+        gate,
+        columns_per_pass: None,
+    };
+    summarise_stored(&stored, &scalars, &plan)
+}
+
+/// Writes bands.csv, bands.json, cdf.csv and summary.json.
+fn write_all(
+    layout: &RunLayout,
+    bands: Option<Bands>,
+    cdf: Option<Bands>,
+    features: Option<DrawFeatures>,
+    converged: Option<bool>,
+) -> Result<()> {
+    let missing = || Error::internal("the bands were not computed");
+    let bands = bands.ok_or_else(missing)?;
+    write_bands(layout, &bands, converged)?;
+    let file = summary_file(&features.ok_or_else(missing)?, &bands, converged);
+    write_summaries(layout, &cdf.ok_or_else(missing)?, &file)
 }
 
 /// Bands on another grid; they carry the verdict of the run's diagnostics.json, if any.
@@ -73,13 +81,12 @@ fn write_for_grid(
     t: Transform,
 ) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
-    let (draws, dens) = densities(layout, &manifest, from, to, points, t)?;
+    let grid = linspace(from, to, points);
+    let s = summaries(layout, &manifest, &grid, levels, t, None)?;
     let converged = DiagnosticsReport::read(&layout.diagnostics_json())
         .ok()
         .map(|r| r.passed);
-    let bands = Bands::new(&dens, levels);
-    write_bands(layout, &bands, converged)?;
-    write_summaries(layout, &draws, &dens, &bands, t, converged)
+    write_all(layout, s.bands, s.cdf, s.features, converged)
 }
 
 pub(super) fn bands(

@@ -2,15 +2,17 @@
 //! advice and notes, gathered into a [`DiagnosticsReport`].
 
 use super::advice::{advice, AdviceContext};
-use super::density::assess_grid;
+use super::density::{assess_grid, GridPoint};
 use super::failure::{Failure, FailureKind};
-use super::quantity::evaluate;
+use super::quantity::{evaluate, QuantityReport};
 use super::report::{DiagnosticsReport, RhatScope, DIAGNOSTICS_FORMAT};
-use super::series::{component_series, label_invariant_series};
+use super::series::{component_series, label_invariant_series, Series};
 use super::thresholds::{ThresholdOverrides, Thresholds};
 use crate::config::{parse_config_str, resolve, HyperChoice, Kernel, RunConfig, WeightsKind};
+use crate::data::Transform;
 use crate::error::{Error, Result};
-use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout, RunStatus};
+use crate::run::{summarise_stored, SummaryPlan};
+use crate::store::{Manifest, RunDraws, RunLayout, RunStatus, ScalarDraws, StoredChains};
 use crate::summary::{linspace, DensityDraws};
 
 /// What the gate needs to know about the run besides its draws.
@@ -39,18 +41,18 @@ impl GateSpec {
     }
 }
 
-fn notes(run: &RunDraws, spec: &GateSpec) -> Vec<String> {
+fn notes(lens: &[usize], spec: &GateSpec) -> Vec<String> {
     let mut out = Vec::new();
-    if run.chains.len() == 1 {
+    if lens.len() == 1 {
         out.push("one chain: every R-hat compares the two halves of that chain, a within-chain check only".into());
     }
-    let lens: Vec<usize> = run.chains.iter().map(|c| c.rows.len()).collect();
-    if lens.iter().any(|&l| l != run.min_len()) {
+    let min_len = lens.iter().copied().min().unwrap_or(0);
+    if lens.iter().any(|&l| l != min_len) {
         let list: Vec<String> = lens.iter().map(usize::to_string).collect();
         out.push(format!(
             "chains hold different numbers of draws ({}); each is cut to the shortest, {}",
             list.join(", "),
-            run.min_len()
+            min_len
         ));
     }
     if !spec.run_complete {
@@ -67,8 +69,38 @@ fn notes(run: &RunDraws, spec: &GateSpec) -> Vec<String> {
 /// grid (`dens`, made from the same draws) against `spec`. Never fails: whatever cannot be
 /// assessed is reported as `unavailable` and fails the gate.
 pub fn assess(run: &RunDraws, dens: &DensityDraws, spec: &GateSpec) -> DiagnosticsReport {
+    let lens: Vec<usize> = run.chains.iter().map(|c| c.rows.len()).collect();
+    let within_chain = lens.len() == 1;
+    let t = &spec.thresholds;
+    let components = component_series(run, spec.location_kernel)
+        .iter()
+        .map(|s| evaluate(s, false, t, within_chain).0)
+        .collect();
+    assemble(
+        spec,
+        &lens,
+        label_invariant_series(run, spec.concentration_sampled, spec.location_kernel),
+        assess_grid(dens, t, within_chain),
+        components,
+    )
+}
+
+/// The density grid, assessed as [`GridAssessment`] or by `assess_grid`.
+pub(crate) type AssessedGrid = (Vec<GridPoint>, QuantityReport, Vec<Failure>);
+
+/// The report from its parts: the number of draws of each chain (`lens`), the
+/// label-invariant scalar series (cut to the shortest chain), the assessed density grid,
+/// and the reports of the per-component parameters (never gated).
+pub(crate) fn assemble(
+    spec: &GateSpec,
+    lens: &[usize],
+    scalars: Vec<Series>,
+    grid: AssessedGrid,
+    components: Vec<QuantityReport>,
+) -> DiagnosticsReport {
     let t = spec.thresholds;
-    let chains = run.chains.len();
+    let chains = lens.len();
+    let draws_per_chain = lens.iter().copied().min().unwrap_or(0);
     let within_chain = chains == 1;
     let mut failures: Vec<Failure> = Vec::new();
     if chains < t.min_chains {
@@ -84,20 +116,18 @@ pub fn assess(run: &RunDraws, dens: &DensityDraws, spec: &GateSpec) -> Diagnosti
         });
     }
     let mut quantities = Vec::new();
-    for s in label_invariant_series(run, spec.concentration_sampled, spec.location_kernel) {
+    for s in scalars {
         let (r, f) = evaluate(&s, true, &t, within_chain);
         quantities.push(r);
         failures.extend(f);
     }
-    let (density_grid, summary, f) = assess_grid(dens, &t, within_chain);
+    let (density_grid, summary, f) = grid;
     quantities.push(summary);
     failures.extend(f);
-    for s in component_series(run, spec.location_kernel) {
-        quantities.push(evaluate(&s, false, &t, within_chain).0);
-    }
+    quantities.extend(components);
     let ctx = AdviceContext {
         chains,
-        draws_per_chain: run.min_len(),
+        draws_per_chain,
         min_ess: t.min_ess,
         min_chains: t.min_chains,
     };
@@ -108,7 +138,7 @@ pub fn assess(run: &RunDraws, dens: &DensityDraws, spec: &GateSpec) -> Diagnosti
         passed: failures.is_empty(),
         thresholds: t,
         chains,
-        draws_per_chain: run.min_len(),
+        draws_per_chain,
         rhat_scope: if within_chain {
             RhatScope::WithinChain
         } else {
@@ -119,7 +149,7 @@ pub fn assess(run: &RunDraws, dens: &DensityDraws, spec: &GateSpec) -> Diagnosti
         density_grid,
         advice: advice(&failures, ctx),
         failures: failures.into_iter().map(|f| f.sentence).collect(),
-        notes: notes(run, spec),
+        notes: notes(lens, spec),
     }
 }
 
@@ -138,10 +168,20 @@ pub fn assess_run(layout: &RunLayout, overrides: &ThresholdOverrides) -> Result<
     let origin = path.display().to_string();
     let raw = parse_config_str(&text, &origin)?;
     let cfg = resolve(&raw, &text, &origin, &layout.root, None)?;
-    let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
+    let stored = StoredChains::new(&layout.draws_dir(), &manifest.chain_ids());
+    let scalars = ScalarDraws::read(&stored)?;
     let grid = linspace(cfg.grid_from, cfg.grid_to, cfg.grid_points);
-    let dens = DensityDraws::new(&draws, &grid);
     let mut spec = GateSpec::from_config(&cfg, manifest.status == RunStatus::Complete);
     spec.thresholds = spec.thresholds.with(overrides)?;
-    Ok(assess(&draws, &dens, &spec))
+    // The density on the fitted scale, as `diagnose` has always assessed it.
+    let plan = SummaryPlan {
+        grid: &grid,
+        transform: Transform::None,
+        levels: None,
+        gate: Some(spec),
+        columns_per_pass: None,
+    };
+    summarise_stored(&stored, &scalars, &plan)?
+        .report
+        .ok_or_else(|| Error::internal("the gate was not assessed"))
 }

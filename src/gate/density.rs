@@ -43,18 +43,49 @@ pub(super) fn assess_grid(
     t: &Thresholds,
     within_chain: bool,
 ) -> (Vec<GridPoint>, QuantityReport, Vec<Failure>) {
-    let mut points = Vec::with_capacity(dens.grid.len());
-    let mut reports = Vec::with_capacity(dens.grid.len());
-    let mut fails: Vec<(f64, Failure)> = Vec::new();
+    let mut acc = GridAssessment::new(dens.grid.len());
     for (g, &x) in dens.grid.iter().enumerate() {
+        let chains = (0..dens.chains).map(|c| dens.series(c, g)).collect();
+        acc.push_point(x, chains, t, within_chain);
+    }
+    acc.finish(t, within_chain)
+}
+
+/// The density grid assessed one point at a time, in grid order, from that point's series
+/// (one vector per chain); only the per-point reports are kept.
+#[derive(Debug, Clone)]
+pub struct GridAssessment {
+    points: Vec<GridPoint>,
+    reports: Vec<QuantityReport>,
+    fails: Vec<(f64, Failure)>,
+}
+
+impl GridAssessment {
+    /// An assessment of a grid of `points` points, none assessed yet.
+    pub fn new(points: usize) -> Self {
+        GridAssessment {
+            points: Vec::with_capacity(points),
+            reports: Vec::with_capacity(points),
+            fails: Vec::new(),
+        }
+    }
+
+    /// Assesses the density at the next grid point `x`, one series per chain.
+    pub fn push_point(
+        &mut self,
+        x: f64,
+        chains: Vec<Vec<f64>>,
+        t: &Thresholds,
+        within_chain: bool,
+    ) {
         let s = Series {
             name: format!("density@{x}"),
             kind: QuantityKind::Density,
             label_invariant: true,
-            chains: (0..dens.chains).map(|c| dens.series(c, g)).collect(),
+            chains,
         };
         let (r, f) = evaluate(&s, true, t, within_chain);
-        points.push(GridPoint {
+        self.points.push(GridPoint {
             x,
             mean: r.mean,
             rhat: r.rhat,
@@ -64,12 +95,21 @@ pub(super) fn assess_grid(
             status: r.status,
             passed: r.passed,
         });
-        fails.extend(f.into_iter().map(|f| (x, f)));
-        reports.push(r);
+        self.fails.extend(f.into_iter().map(|f| (x, f)));
+        self.reports.push(r);
     }
-    let summary = summarise(&points, &reports);
-    let failures = summarise_failures(&fails, points.len(), &summary, t, within_chain);
-    (points, summary, failures)
+
+    /// Per-point reports, the summary entry, and one failure sentence per failing test.
+    pub(crate) fn finish(
+        self,
+        t: &Thresholds,
+        within_chain: bool,
+    ) -> (Vec<GridPoint>, QuantityReport, Vec<Failure>) {
+        let summary = summarise(&self.points, &self.reports);
+        let failures =
+            summarise_failures(&self.fails, self.points.len(), &summary, t, within_chain);
+        (self.points, summary, failures)
+    }
 }
 
 /// Index of the largest (`max`) or smallest value of `f` over the points that have one.

@@ -16,12 +16,14 @@ mod series;
 mod table;
 mod thresholds;
 
+pub(crate) use assess::assemble;
 pub use assess::{assess, assess_run, GateSpec};
-pub use density::{GridPoint, WorstAt, DENSITY_SUMMARY_NAME};
+pub use density::{GridAssessment, GridPoint, WorstAt, DENSITY_SUMMARY_NAME};
 pub use failure::{Failure, FailureKind};
 pub use format::{fmt_ess, fmt_rhat, fmt_sig};
+pub(crate) use quantity::evaluate;
 pub use quantity::{QuantityReport, QuantityStatus};
 pub use report::{DiagnosticsReport, RhatScope, DIAGNOSTICS_FORMAT};
-pub use series::{QuantityKind, Series};
+pub use series::{scalar_series, ComponentParam, QuantityKind, Series};
 pub use table::{render_table, verdict};
 pub use thresholds::{ThresholdOverrides, Thresholds};

@@ -236,7 +236,7 @@ fn modal_share(s: &Series) -> (f64, f64) {
 /// a count (runs of equal counts are normal), which is judged on R-hat and ESS, and it does
 /// not fail a density point whose stuck half-chains sit at exactly 0 (underflow). A count
 /// that is nearly constant (share ≥ [`NEARLY_CONSTANT_SHARE`]) is not gated.
-pub(super) fn evaluate(
+pub(crate) fn evaluate(
     s: &Series,
     gated: bool,
     t: &Thresholds,

@@ -3,7 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::store::{DrawRow, RunDraws};
+use crate::store::{ChainScalars, DrawRow, RunDraws, ScalarDraws};
 
 /// What kind of values a quantity takes; decides how a stuck half-chain is judged.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -28,27 +28,6 @@ pub struct Series {
 }
 
 impl Series {
-    /// Builds a series from `f` applied to the first `len` rows of every chain.
-    pub fn from_rows(
-        name: &str,
-        kind: QuantityKind,
-        label_invariant: bool,
-        run: &RunDraws,
-        f: impl Fn(&DrawRow) -> f64,
-    ) -> Self {
-        let len = run.min_len();
-        Series {
-            name: name.to_string(),
-            kind,
-            label_invariant,
-            chains: run
-                .chains
-                .iter()
-                .map(|c| c.rows[..len].iter().map(&f).collect())
-                .collect(),
-        }
-    }
-
     /// The chains as slices, the form the diagnostics take.
     pub fn slices(&self) -> Vec<&[f64]> {
         self.chains.iter().map(Vec::as_slice).collect()
@@ -62,62 +41,114 @@ pub fn label_invariant_series(
     concentration_sampled: bool,
     location_kernel: bool,
 ) -> Vec<Series> {
+    scalar_series(
+        &ScalarDraws::from_run(run),
+        concentration_sampled,
+        location_kernel,
+    )
+}
+
+/// [`label_invariant_series`] from the scalars of a run, every chain cut to the shortest.
+pub fn scalar_series(
+    run: &ScalarDraws,
+    concentration_sampled: bool,
+    location_kernel: bool,
+) -> Vec<Series> {
+    let len = run.min_len();
+    let series = |name: &str, kind, f: &dyn Fn(&ChainScalars) -> Vec<f64>| Series {
+        name: name.to_string(),
+        kind,
+        label_invariant: true,
+        chains: run
+            .chains
+            .iter()
+            .map(|c| {
+                let mut v = f(c);
+                v.truncate(len);
+                v
+            })
+            .collect(),
+    };
     let mut out = vec![
-        Series::from_rows("loglik", QuantityKind::Continuous, true, run, |r| r.loglik),
-        Series::from_rows("occupied", QuantityKind::Count, true, run, |r| {
-            f64::from(r.occupied)
+        series("loglik", QuantityKind::Continuous, &|c| c.loglik.clone()),
+        series("occupied", QuantityKind::Count, &|c| {
+            c.occupied.iter().map(|&o| f64::from(o)).collect()
         }),
     ];
     if concentration_sampled {
-        out.push(Series::from_rows(
-            "concentration",
-            QuantityKind::Continuous,
-            true,
-            run,
-            |r| r.concentration,
-        ));
+        out.push(series("concentration", QuantityKind::Continuous, &|c| {
+            c.concentration.clone()
+        }));
     }
     if location_kernel && run.k > 0 {
-        out.push(Series::from_rows(
-            "sigma",
-            QuantityKind::Continuous,
-            true,
-            run,
-            |r| r.sd[0],
-        ));
+        out.push(series("sigma", QuantityKind::Continuous, &|c| {
+            c.sd1.clone()
+        }));
     }
     out
+}
+
+/// One per-component parameter: `weight_k`, `mean_k` or `sd_k` (index from 0).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ComponentParam {
+    Weight(usize),
+    Mean(usize),
+    Sd(usize),
+}
+
+impl ComponentParam {
+    /// The parameters shown for K components, in report order: `weight_k`, `mean_k` and
+    /// (location-scale kernel) `sd_k` for k = 1..K.
+    pub fn all(k: usize, location_kernel: bool) -> Vec<ComponentParam> {
+        let mut out = Vec::new();
+        for j in 0..k {
+            out.push(ComponentParam::Weight(j));
+            out.push(ComponentParam::Mean(j));
+            if !location_kernel {
+                out.push(ComponentParam::Sd(j));
+            }
+        }
+        out
+    }
+
+    /// Its value in one draw.
+    pub fn value(self, r: &DrawRow) -> f64 {
+        match self {
+            ComponentParam::Weight(j) => r.weight[j],
+            ComponentParam::Mean(j) => r.mean[j],
+            ComponentParam::Sd(j) => r.sd[j],
+        }
+    }
+
+    /// Its draws as a series (not label-invariant), one vector per chain.
+    pub fn series(self, chains: Vec<Vec<f64>>) -> Series {
+        let (what, j) = match self {
+            ComponentParam::Weight(j) => ("weight", j),
+            ComponentParam::Mean(j) => ("mean", j),
+            ComponentParam::Sd(j) => ("sd", j),
+        };
+        Series {
+            name: format!("{what}_{}", j + 1),
+            kind: QuantityKind::Continuous,
+            label_invariant: false,
+            chains,
+        }
+    }
 }
 
 /// Per-component parameters `weight_k`, `mean_k` and (location-scale kernel) `sd_k`:
 /// shown for information only, since labels switch between and within chains.
 pub fn component_series(run: &RunDraws, location_kernel: bool) -> Vec<Series> {
-    let mut out = Vec::new();
-    for j in 0..run.k {
-        let n = j + 1;
-        out.push(Series::from_rows(
-            &format!("weight_{n}"),
-            QuantityKind::Continuous,
-            false,
-            run,
-            |r| r.weight[j],
-        ));
-        out.push(Series::from_rows(
-            &format!("mean_{n}"),
-            QuantityKind::Continuous,
-            false,
-            run,
-            |r| r.mean[j],
-        ));
-        if !location_kernel {
-            out.push(Series::from_rows(
-                &format!("sd_{n}"),
-                QuantityKind::Continuous,
-                false,
-                run,
-                |r| r.sd[j],
-            ));
-        }
-    }
-    out
+    let len = run.min_len();
+    ComponentParam::all(run.k, location_kernel)
+        .into_iter()
+        .map(|p| {
+            p.series(
+                run.chains
+                    .iter()
+                    .map(|c| c.rows[..len].iter().map(|r| p.value(r)).collect())
+                    .collect(),
+            )
+        })
+        .collect()
 }

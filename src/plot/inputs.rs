@@ -1,5 +1,5 @@
 //! Everything the figures and the report read from a run directory: the manifest, the
-//! resolved config with its data, the stored draws, and the bands as written to
+//! resolved config with its data, the scalars of the stored draws, and the bands as written to
 //! bands.json. Nothing here computes a summary; the figures show what the run wrote.
 
 use std::path::Path;
@@ -9,7 +9,7 @@ use serde::Deserialize;
 use crate::config::Kernel;
 use crate::error::{Error, Result};
 use crate::run::Prepared;
-use crate::store::{read_run_draws, Manifest, RunDraws, RunLayout};
+use crate::store::{Manifest, RunLayout, ScalarDraws, StoredChains};
 
 /// One credible level as stored in bands.json.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
@@ -79,7 +79,9 @@ pub struct RunInputs {
     pub layout: RunLayout,
     pub manifest: Manifest,
     pub prep: Prepared,
-    pub draws: RunDraws,
+    /// The scalars of every stored draw (the component parameters are not read: the
+    /// figures show only label-invariant quantities and what bands.json holds).
+    pub draws: ScalarDraws,
     pub bands: StoredBands,
     /// The observations on the data scale.
     pub observations: Vec<f64>,
@@ -101,7 +103,10 @@ impl RunInputs {
                 manifest.data.sha256
             )));
         }
-        let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids())?;
+        let draws = ScalarDraws::read(&StoredChains::new(
+            &layout.draws_dir(),
+            &manifest.chain_ids(),
+        ))?;
         if draws.min_len() < 4 {
             return Err(Error::input(format!(
                 "{}: fewer than 4 stored draws in some chain; nothing to plot yet",

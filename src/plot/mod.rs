@@ -23,7 +23,8 @@ pub use ranks::ranks_svg;
 pub use trace::trace_svg;
 
 use crate::error::{Error, Result};
-use crate::store::write_atomic;
+use crate::store::{write_atomic, StoredChains};
+use crate::summary::mixture_density;
 
 /// Every figure of a run, as SVG text.
 #[derive(Debug, Clone)]
@@ -86,23 +87,36 @@ pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
     if let Some(g) = gate_grid(inp) {
         return Ok(Some(g));
     }
-    let dens = crate::summary::DensityDraws::new(&inp.draws, &inp.bands.grid);
-    let mut rhat = Vec::with_capacity(dens.grid.len());
-    let mut ess_bulk = Vec::with_capacity(dens.grid.len());
-    for g in 0..dens.grid.len() {
-        let series: Vec<Vec<f64>> = (0..dens.chains).map(|c| dens.series(c, g)).collect();
-        let refs: Vec<&[f64]> = series.iter().map(Vec::as_slice).collect();
-        match crate::diagnostics::scalar_diagnostics(&refs) {
-            Ok(d) => {
-                rhat.push(d.rhat);
-                ess_bulk.push(d.ess_bulk);
+    // The density on the fitted scale at each grid point, a window of points per reading
+    // of the tables (bounded memory, as for the summaries).
+    let grid = &inp.bands.grid;
+    let stored = StoredChains::new(&inp.layout.draws_dir(), &inp.manifest.chain_ids());
+    let len = inp.draws.min_len();
+    let width = crate::run::window_width(inp.draws.chains.len() * len);
+    let mut rhat = Vec::with_capacity(grid.len());
+    let mut ess_bulk = Vec::with_capacity(grid.len());
+    let points: Vec<usize> = (0..grid.len()).collect();
+    for window in points.chunks(width) {
+        let cols = stored.columns(len, window.len(), |row, out| {
+            for (o, &i) in out.iter_mut().zip(window) {
+                *o = mixture_density(row, grid[i]);
             }
-            Err(_) => return Ok(None),
+        })?;
+        for i in 0..window.len() {
+            let series = cols.per_chain(i);
+            let refs: Vec<&[f64]> = series.iter().map(Vec::as_slice).collect();
+            match crate::diagnostics::scalar_diagnostics(&refs) {
+                Ok(d) => {
+                    rhat.push(d.rhat);
+                    ess_bulk.push(d.ess_bulk);
+                }
+                Err(_) => return Ok(None),
+            }
         }
     }
     let c = &inp.prep.config;
     Ok(Some(GridDiagnostics {
-        x: dens.grid.clone(),
+        x: grid.clone(),
         rhat,
         ess_bulk,
         max_rhat: c.max_rhat,

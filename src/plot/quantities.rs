@@ -2,7 +2,7 @@
 //! log-likelihood, occupied components, concentration, and the common σ of a location
 //! kernel (component labels switch, so per-component parameters are not shown).
 
-use crate::store::RunDraws;
+use crate::store::{ChainScalars, ScalarDraws};
 
 /// One scalar quantity, one series per chain.
 #[derive(Debug, Clone, PartialEq)]
@@ -27,36 +27,32 @@ impl Quantity {
 
 /// The quantities of a run; `sigma` only when `location_kernel` (then every component
 /// shares it and `sd_1` is that common value).
-pub fn scalar_quantities(draws: &RunDraws, location_kernel: bool) -> Vec<Quantity> {
-    let series = |f: &dyn Fn(&crate::store::DrawRow) -> f64| -> Vec<Vec<f64>> {
-        draws
-            .chains
-            .iter()
-            .map(|c| c.rows.iter().map(f).collect())
-            .collect()
+pub fn scalar_quantities(draws: &ScalarDraws, location_kernel: bool) -> Vec<Quantity> {
+    let series = |f: &dyn Fn(&ChainScalars) -> Vec<f64>| -> Vec<Vec<f64>> {
+        draws.chains.iter().map(f).collect()
     };
     let mut q = vec![
         Quantity {
             name: "loglik",
             label: "log-likelihood",
-            chains: series(&|r| r.loglik),
+            chains: series(&|c| c.loglik.clone()),
         },
         Quantity {
             name: "occupied",
             label: "occupied components",
-            chains: series(&|r| r.occupied as f64),
+            chains: series(&|c| c.occupied.iter().map(|&o| f64::from(o)).collect()),
         },
         Quantity {
             name: "concentration",
             label: "concentration",
-            chains: series(&|r| r.concentration),
+            chains: series(&|c| c.concentration.clone()),
         },
     ];
     if location_kernel {
         q.push(Quantity {
             name: "sigma",
             label: "common σ",
-            chains: series(&|r| r.sd.first().copied().unwrap_or(f64::NAN)),
+            chains: series(&|c| c.sd1.clone()),
         });
     }
     q

@@ -34,13 +34,7 @@ pub fn trace_svg(inp: &RunInputs) -> Result<String> {
             })
             .collect();
         draw_legend(root, &legend, 66)?;
-        let longest = inp
-            .draws
-            .chains
-            .iter()
-            .map(|c| c.rows.len())
-            .max()
-            .unwrap_or(0);
+        let longest = inp.draws.chains.iter().map(|c| c.len()).max().unwrap_or(0);
         if longest > style::TRACE_MAX_POINTS {
             let step = longest.div_ceil(style::TRACE_MAX_POINTS);
             let (w, _) = root.dim_in_pixel();

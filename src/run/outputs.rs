@@ -3,12 +3,10 @@
 
 use serde::Serialize;
 
-use crate::data::Transform;
 use crate::error::{Error, Result};
-use crate::store::{write_atomic, DrawRow, RunDraws, RunLayout};
+use crate::store::{write_atomic, RunLayout};
 use crate::summary::{
-    cdf_draws, count_modes, distribution, mixture_mean_on, mixture_quantile_on, mixture_sd_on,
-    Bands, CountProbability, DensityDraws, Posterior, MIN_RELATIVE_PROMINENCE,
+    distribution, Bands, CountProbability, DrawFeatures, Posterior, MIN_RELATIVE_PROMINENCE,
 };
 
 /// The content of `bands.json`.
@@ -145,63 +143,55 @@ pub struct SummaryFile {
 /// Probabilities of the distribution's quantiles summarised in summary.json.
 pub const QUANTILE_PROBS: [f64; 3] = [0.05, 0.5, 0.95];
 
-/// Computes and writes cdf.csv and summary.json from the draws and their densities on the
-/// grid (`dens`, `bands` as written to bands.csv); `t` is the scale the draws were fitted
-/// on, and every summary is on the original scale.
-pub fn write_summaries(
-    layout: &RunLayout,
-    draws: &RunDraws,
-    dens: &DensityDraws,
-    bands: &Bands,
-    t: Transform,
-    converged: Option<bool>,
-) -> Result<()> {
+/// The content of summary.json from the features of every draw used (`f`), the density
+/// `bands` (for the grid, the levels and the simultaneous multipliers) and the verdict.
+pub fn summary_file(f: &DrawFeatures, bands: &Bands, converged: Option<bool>) -> SummaryFile {
     let levels = &bands.levels;
-    let cdf = Bands::new_clipped(&cdf_draws(draws, &dens.grid, t), levels, 0.0, 1.0);
-    write_atomic(&layout.cdf_csv(), cdf.to_csv().as_bytes())?;
-
-    let n = draws.min_len();
-    let rows: Vec<&DrawRow> = draws.chains.iter().flat_map(|c| &c.rows[..n]).collect();
-    let feature = |f: &dyn Fn(&DrawRow) -> f64| {
-        Posterior::of(&rows.iter().map(|r| f(r)).collect::<Vec<_>>(), levels)
-    };
-    let g = dens.grid.len();
-    let file = SummaryFile {
+    let grid = &bands.x;
+    let g = grid.len();
+    SummaryFile {
         tool: "mixband",
         version: env!("CARGO_PKG_VERSION"),
         converged,
         caution: caution(converged),
-        draws_used: rows.len(),
+        draws_used: f.len(),
         levels: levels.clone(),
         simultaneous_density: simul_multipliers(bands),
         cdf_file: "cdf.csv",
-        mean: feature(&|r| mixture_mean_on(r, t)),
-        sd: feature(&|r| mixture_sd_on(r, t)),
-        quantiles: QUANTILE_PROBS
+        mean: Posterior::of(&f.mean, levels),
+        sd: Posterior::of(&f.sd, levels),
+        quantiles: f
+            .probs
             .iter()
-            .map(|&p| QuantileSummary {
+            .zip(&f.quantiles)
+            .map(|(&p, q)| QuantileSummary {
                 p,
-                posterior: feature(&|r| mixture_quantile_on(r, p, t)),
+                posterior: Posterior::of(q, levels),
             })
             .collect(),
         modes: CountSummary {
             definition: format!(
                 "interior local maxima of each draw's density on the {g}-point grid from {} to {}, ignoring bumps whose \
                  prominence is below {}% of that draw's highest value",
-                dens.grid[0],
-                dens.grid[g - 1],
+                grid[0],
+                grid[g - 1],
                 MIN_RELATIVE_PROMINENCE * 100.0
             ),
-            distribution: distribution(dens.values.chunks_exact(g).map(count_modes)),
+            distribution: distribution(f.modes.iter().copied()),
         },
         occupied_components: CountSummary {
             definition: "components with at least one observation allocated in the sweep; this is NOT the number of \
                          modes: overlapping components form one mode and a skewed bump takes several components"
                 .into(),
-            distribution: distribution(rows.iter().map(|r| r.occupied as usize)),
+            distribution: distribution(f.occupied.iter().copied()),
         },
-    };
-    let mut json = serde_json::to_vec_pretty(&file)
+    }
+}
+
+/// Writes cdf.csv (the CDF's bands) and summary.json.
+pub fn write_summaries(layout: &RunLayout, cdf: &Bands, summary: &SummaryFile) -> Result<()> {
+    write_atomic(&layout.cdf_csv(), cdf.to_csv().as_bytes())?;
+    let mut json = serde_json::to_vec_pretty(summary)
         .map_err(|e| Error::internal(format!("cannot encode summary: {e}")))?;
     json.push(b'\n');
     write_atomic(&layout.summary_json(), &json)

@@ -250,6 +250,21 @@ pub struct DrawRow {
     pub sd: Vec<f64>,
 }
 
+impl DrawRow {
+    /// A row with no components, to be filled by the parser.
+    pub fn empty() -> Self {
+        DrawRow {
+            iteration: 0,
+            loglik: 0.0,
+            occupied: 0,
+            concentration: 0.0,
+            weight: Vec::new(),
+            mean: Vec::new(),
+            sd: Vec::new(),
+        }
+    }
+}
+
 /// The rows of one chain.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChainDraws {
@@ -273,10 +288,12 @@ impl RunDraws {
 
 /// Reads a chain table, ignoring an unterminated last row.
 pub fn read_chain(path: &Path, chain: u64) -> Result<ChainDraws> {
-    let bytes = std::fs::read(path).map_err(|e| Error::io(path, e))?;
-    // A crash can cut a multi-byte character in half; only complete rows count anyway.
-    let text = String::from_utf8_lossy(&bytes);
-    parse_chain(&text, &path.display().to_string(), chain)
+    let mut r = super::stream::RowReader::open(path)?;
+    let mut rows = Vec::new();
+    while let Some(row) = r.next_row()? {
+        rows.push(row.clone());
+    }
+    Ok(ChainDraws { chain, rows })
 }
 
 /// Parses the text of a chain table (see [`read_chain`]); `origin` names it in messages.
@@ -289,46 +306,64 @@ pub fn parse_chain(text: &str, origin: &str, chain: u64) -> Result<ChainDraws> {
     let head = lines
         .next()
         .ok_or_else(|| Error::input(format!("{origin}: empty draw table")))?;
+    let (fields, k) = parse_header(head, origin)?;
+    let mut rows = Vec::new();
+    for (i, line) in lines.enumerate() {
+        let mut row = DrawRow::empty();
+        parse_row(line, fields, k, origin, i + 2, &mut row)?;
+        rows.push(row);
+    }
+    Ok(ChainDraws { chain, rows })
+}
+
+/// Checks the header line of a chain table; returns its field count and K.
+pub(super) fn parse_header(head: &str, origin: &str) -> Result<(usize, usize)> {
     let fields = head.split(',').count();
     if fields < 7
-        || (fields - 4) % 3 != 0
+        || !(fields - 4).is_multiple_of(3)
         || !head.starts_with("iteration,loglik,occupied,concentration")
     {
         return Err(Error::input(format!(
             "{origin}: not a mixband draw table (header \"{head}\")"
         )));
     }
-    let k = (fields - 4) / 3;
-    let mut rows = Vec::new();
-    for (i, line) in lines.enumerate() {
-        let bad = |what: &str| Error::input(format!("{origin}: line {}: {what}", i + 2));
-        let cells: Vec<&str> = line.split(',').collect();
-        if cells.len() != fields {
-            return Err(bad(&format!("{} fields, expected {fields}", cells.len())));
-        }
-        let num = |s: &str| -> Result<f64> {
-            s.parse::<f64>()
-                .ok()
-                .filter(|v| v.is_finite())
-                .ok_or_else(|| bad(&format!("\"{s}\" is not a finite number")))
-        };
-        let mut row = DrawRow {
-            iteration: cells[0].parse().map_err(|_| bad("bad iteration"))?,
-            loglik: num(cells[1])?,
-            occupied: cells[2].parse().map_err(|_| bad("bad occupied count"))?,
-            concentration: num(cells[3])?,
-            weight: Vec::with_capacity(k),
-            mean: Vec::with_capacity(k),
-            sd: Vec::with_capacity(k),
-        };
-        for j in 0..k {
-            row.weight.push(num(cells[4 + 3 * j])?);
-            row.mean.push(num(cells[5 + 3 * j])?);
-            row.sd.push(num(cells[6 + 3 * j])?);
-        }
-        rows.push(row);
+    Ok((fields, (fields - 4) / 3))
+}
+
+/// Parses line `line_no` (1 is the header) of a table with `fields` fields and `k`
+/// components into `row`, reusing its vectors.
+pub(super) fn parse_row(
+    line: &str,
+    fields: usize,
+    k: usize,
+    origin: &str,
+    line_no: usize,
+    row: &mut DrawRow,
+) -> Result<()> {
+    let bad = |what: &str| Error::input(format!("{origin}: line {line_no}: {what}"));
+    let cells: Vec<&str> = line.split(',').collect();
+    if cells.len() != fields {
+        return Err(bad(&format!("{} fields, expected {fields}", cells.len())));
     }
-    Ok(ChainDraws { chain, rows })
+    let num = |s: &str| -> Result<f64> {
+        s.parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| bad(&format!("\"{s}\" is not a finite number")))
+    };
+    row.iteration = cells[0].parse().map_err(|_| bad("bad iteration"))?;
+    row.loglik = num(cells[1])?;
+    row.occupied = cells[2].parse().map_err(|_| bad("bad occupied count"))?;
+    row.concentration = num(cells[3])?;
+    row.weight.clear();
+    row.mean.clear();
+    row.sd.clear();
+    for j in 0..k {
+        row.weight.push(num(cells[4 + 3 * j])?);
+        row.mean.push(num(cells[5 + 3 * j])?);
+        row.sd.push(num(cells[6 + 3 * j])?);
+    }
+    Ok(())
 }
 
 /// Reads `draws/chain-<i>.csv` for the given chain ids.

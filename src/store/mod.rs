@@ -15,6 +15,8 @@ mod checkpoint;
 mod draws;
 mod layout;
 mod manifest;
+mod scalars;
+mod stream;
 
 pub use atomic::write_atomic;
 pub use checkpoint::{read_checkpoint, StoredCheckpoint};
@@ -23,3 +25,5 @@ pub use draws::{
 };
 pub use layout::RunLayout;
 pub use manifest::{ChainRecord, DataRecord, Manifest, RunStatus};
+pub use scalars::{ChainScalars, ScalarDraws};
+pub use stream::{Columns, RowReader, StoredChains};

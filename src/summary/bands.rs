@@ -6,7 +6,7 @@ use serde::Serialize;
 
 use super::density::DensityDraws;
 use super::quantile::quantile_sorted;
-use super::simultaneous::{simultaneous_bands, SimultaneousBand};
+use super::simultaneous::{max_standardised_deviation, simultaneous_from_max, SimultaneousBand};
 use crate::numfmt::fmt_f64;
 
 /// Pointwise summaries over draws.
@@ -43,37 +43,12 @@ impl Bands {
     /// simultaneous bands are clipped to that range.
     pub fn new_clipped(dens: &DensityDraws, levels: &[f64], lo: f64, hi: f64) -> Self {
         let g = dens.grid.len();
-        let mut b = Bands {
-            x: dens.grid.clone(),
-            mean: Vec::with_capacity(g),
-            median: Vec::with_capacity(g),
-            levels: levels.to_vec(),
-            lower: vec![Vec::with_capacity(g); levels.len()],
-            upper: vec![Vec::with_capacity(g); levels.len()],
-            sd: Vec::with_capacity(g),
-            simul: Vec::new(),
-            draws_used: dens.chains * dens.draws,
-        };
+        let mut b = BandsBuilder::new(&dens.grid, levels, dens.chains * dens.draws);
         for i in 0..g {
-            let mut v = dens.pooled(i);
-            let n = v.len() as f64;
-            let mean = v.iter().sum::<f64>() / n;
-            b.mean.push(mean);
-            let ss: f64 = v.iter().map(|&y| (y - mean) * (y - mean)).sum();
-            b.sd.push(if v.len() > 1 {
-                (ss / (n - 1.0)).sqrt()
-            } else {
-                0.0
-            });
-            v.sort_by(f64::total_cmp);
-            b.median.push(quantile_sorted(&v, 0.5));
-            for (l, &level) in levels.iter().enumerate() {
-                b.lower[l].push(quantile_sorted(&v, 0.5 * (1.0 - level)));
-                b.upper[l].push(quantile_sorted(&v, 0.5 * (1.0 + level)));
-            }
+            b.push_point(dens.pooled(i));
         }
-        b.simul = simultaneous_bands(&dens.values, g, &b.mean, &b.sd, levels, lo, hi);
-        b
+        let m = max_standardised_deviation(&dens.values, g, &b.bands.mean, &b.bands.sd);
+        b.finish(&m, lo, hi)
     }
 
     /// CSV text: `x, mean, median`, then `lower_<L>, upper_<L>` per level, then
@@ -110,5 +85,64 @@ impl Bands {
             s.push('\n');
         }
         s
+    }
+}
+
+/// Bands built one grid point at a time, in grid order, from that point's values over every
+/// draw; the simultaneous bands need each draw's maximal standardised deviation over the
+/// whole grid, given at the end.
+#[derive(Debug, Clone)]
+pub struct BandsBuilder {
+    bands: Bands,
+}
+
+impl BandsBuilder {
+    /// Bands on `grid` at `levels` over `draws_used` draws, with no point summarised yet.
+    pub fn new(grid: &[f64], levels: &[f64], draws_used: usize) -> Self {
+        let g = grid.len();
+        BandsBuilder {
+            bands: Bands {
+                x: grid.to_vec(),
+                mean: Vec::with_capacity(g),
+                median: Vec::with_capacity(g),
+                levels: levels.to_vec(),
+                lower: vec![Vec::with_capacity(g); levels.len()],
+                upper: vec![Vec::with_capacity(g); levels.len()],
+                sd: Vec::with_capacity(g),
+                simul: Vec::new(),
+                draws_used,
+            },
+        }
+    }
+
+    /// Summarises the next grid point from its values `v` over every draw (non-empty,
+    /// chain after chain); returns the point's posterior mean and sd.
+    pub fn push_point(&mut self, mut v: Vec<f64>) -> (f64, f64) {
+        let b = &mut self.bands;
+        let n = v.len() as f64;
+        let mean = v.iter().sum::<f64>() / n;
+        b.mean.push(mean);
+        let ss: f64 = v.iter().map(|&y| (y - mean) * (y - mean)).sum();
+        let sd = if v.len() > 1 {
+            (ss / (n - 1.0)).sqrt()
+        } else {
+            0.0
+        };
+        b.sd.push(sd);
+        v.sort_by(f64::total_cmp);
+        b.median.push(quantile_sorted(&v, 0.5));
+        for (l, &level) in b.levels.iter().enumerate() {
+            b.lower[l].push(quantile_sorted(&v, 0.5 * (1.0 - level)));
+            b.upper[l].push(quantile_sorted(&v, 0.5 * (1.0 + level)));
+        }
+        (mean, sd)
+    }
+
+    /// The bands, with simultaneous bands from `max_dev` (each draw's maximal standardised
+    /// deviation, see [`super::simultaneous`]) clipped to [lo, hi].
+    pub fn finish(mut self, max_dev: &[f64], lo: f64, hi: f64) -> Bands {
+        let b = &mut self.bands;
+        b.simul = simultaneous_from_max(max_dev, &b.mean, &b.sd, &b.levels, lo, hi);
+        self.bands
     }
 }

@@ -6,15 +6,17 @@
 mod bands;
 mod cdf;
 mod density;
+mod features;
 mod functionals;
 mod grid;
 mod modes;
 mod quantile;
 mod simultaneous;
 
-pub use bands::{level_label, Bands};
+pub use bands::{level_label, Bands, BandsBuilder};
 pub use cdf::{cdf_draws, mixture_cdf, mixture_cdf_on, std_normal_cdf};
 pub use density::{mixture_density, mixture_density_on, DensityDraws};
+pub use features::DrawFeatures;
 pub use functionals::{
     mixture_mean, mixture_mean_on, mixture_quantile, mixture_quantile_on, mixture_sd,
     mixture_sd_on, Interval, Posterior,
@@ -23,5 +25,6 @@ pub use grid::linspace;
 pub use modes::{count_modes, distribution, CountProbability, MIN_RELATIVE_PROMINENCE};
 pub use quantile::quantile_sorted;
 pub use simultaneous::{
-    critical_value, max_standardised_deviation, simultaneous_bands, SimultaneousBand,
+    critical_value, fold_max_deviation, max_standardised_deviation, simultaneous_bands,
+    simultaneous_from_max, SimultaneousBand,
 };

@@ -62,10 +62,33 @@ pub fn simultaneous_bands(
     hi: f64,
 ) -> Vec<SimultaneousBand> {
     let m = max_standardised_deviation(values, grid, mean, sd);
+    simultaneous_from_max(&m, mean, sd, levels, lo, hi)
+}
+
+/// Folds the deviations of one grid point (`values` over every draw, pointwise `mean` and
+/// `sd`) into each draw's running maximum `max_dev`; after every point of the grid it holds
+/// [`max_standardised_deviation`] (a maximum does not depend on the order it is taken in).
+pub fn fold_max_deviation(max_dev: &mut [f64], values: &[f64], mean: f64, sd: f64) {
+    if sd > 0.0 {
+        for (m, &v) in max_dev.iter_mut().zip(values) {
+            *m = m.max((v - mean).abs() / sd);
+        }
+    }
+}
+
+/// Simultaneous bands at each level from each draw's maximal standardised deviation `m`.
+pub fn simultaneous_from_max(
+    m: &[f64],
+    mean: &[f64],
+    sd: &[f64],
+    levels: &[f64],
+    lo: f64,
+    hi: f64,
+) -> Vec<SimultaneousBand> {
     levels
         .iter()
         .map(|&level| {
-            let c = critical_value(&m, level);
+            let c = critical_value(m, level);
             SimultaneousBand {
                 level,
                 c,
