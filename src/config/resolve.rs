@@ -233,7 +233,7 @@ pub fn resolve(
     let s = raw.sampler.clone().unwrap_or_default();
     let chains = ck.int_in("sampler", "chains", s.chains, 1, MAX_CHAINS, 4)?;
     let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 1000)?;
-    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 2000)?;
+    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 3000)?;
     let thin = ck.int_in("sampler", "thin", s.thin, 1, MAX_THIN, 1)?;
     if (warmup + draws * thin) as i64 > MAX_SWEEPS {
         return Err(ck.fail(

@@ -24,7 +24,7 @@ pub use trace::trace_svg;
 
 use crate::error::{Error, Result};
 use crate::store::{write_atomic, StoredChains};
-use crate::summary::mixture_density;
+use crate::summary::DrawDensity;
 
 /// Every figure of a run, as SVG text.
 #[derive(Debug, Clone)]
@@ -98,8 +98,9 @@ pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
     let points: Vec<usize> = (0..grid.len()).collect();
     for window in points.chunks(width) {
         let cols = stored.columns(len, window.len(), |row, out| {
+            let density = DrawDensity::new(row);
             for (o, &i) in out.iter_mut().zip(window) {
-                *o = mixture_density(row, grid[i]);
+                *o = density.at(grid[i]);
             }
         })?;
         for i in 0..window.len() {

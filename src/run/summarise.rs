@@ -22,7 +22,7 @@ use crate::gate::{
 };
 use crate::store::{ScalarDraws, StoredChains};
 use crate::summary::{
-    fold_max_deviation, mixture_cdf_on, mixture_density_on, Bands, BandsBuilder, DrawFeatures,
+    fold_max_deviation, mixture_cdf_on, Bands, BandsBuilder, DrawDensity, DrawFeatures,
 };
 
 use super::outputs::QUANTILE_PROBS;
@@ -129,17 +129,24 @@ pub fn summarise_stored(
     let mut curve = vec![0.0; grid.len()];
     for (pass, window) in cols.chunks(width).enumerate() {
         let values = stored.columns(len, window.len(), |row, out| {
+            let density = DrawDensity::new(row);
+            // The first pass also takes each draw's features from its whole curve; its
+            // density columns then read the same values from that curve.
+            let whole = pass == 0 && features.is_some();
+            if whole {
+                for (c, &x) in curve.iter_mut().zip(grid) {
+                    *c = density.at_on(x, t);
+                }
+            }
             for (o, col) in out.iter_mut().zip(window) {
                 *o = match *col {
-                    Column::Density(i) => mixture_density_on(row, grid[i], t),
+                    Column::Density(i) if whole => curve[i],
+                    Column::Density(i) => density.at_on(grid[i], t),
                     Column::Cdf(i) => mixture_cdf_on(row, grid[i], t),
                     Column::Component(p) => p.value(row),
                 };
             }
-            if let (0, Some(f)) = (pass, features.as_mut()) {
-                for (c, &x) in curve.iter_mut().zip(grid) {
-                    *c = mixture_density_on(row, x, t);
-                }
+            if let (true, Some(f)) = (whole, features.as_mut()) {
                 f.push(row, t, &curve);
             }
         })?;

@@ -15,7 +15,7 @@ mod simultaneous;
 
 pub use bands::{level_label, Bands, BandsBuilder};
 pub use cdf::{cdf_draws, mixture_cdf, mixture_cdf_on, std_normal_cdf};
-pub use density::{mixture_density, mixture_density_on, DensityDraws};
+pub use density::{mixture_density, mixture_density_on, DensityDraws, DrawDensity};
 pub use features::DrawFeatures;
 pub use functionals::{
     mixture_mean, mixture_mean_on, mixture_quantile, mixture_quantile_on, mixture_sd,
