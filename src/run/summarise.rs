@@ -20,7 +20,7 @@ use crate::error::Result;
 use crate::gate::{
     assemble, evaluate, scalar_series, ComponentParam, DiagnosticsReport, GateSpec, GridAssessment,
 };
-use crate::store::{ScalarDraws, StoredChains};
+use crate::store::{DrawRow, ScalarDraws, StoredChains};
 use crate::summary::{
     fold_max_deviation, mixture_cdf_on, Bands, BandsBuilder, DrawDensity, DrawFeatures,
 };
@@ -126,17 +126,27 @@ pub fn summarise_stored(
     let mut features = plan.levels.map(|_| DrawFeatures::new(&QUANTILE_PROBS));
     let mut gate_grid = plan.gate.map(|_| GridAssessment::new(grid.len()));
     let mut components = Vec::new();
-    let mut curve = vec![0.0; grid.len()];
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
     for (pass, window) in cols.chunks(width).enumerate() {
-        let values = stored.columns(len, window.len(), |row, out| {
+        // The first pass also takes each draw's features from its whole curve; its
+        // density columns then read the same values from that curve. Chains are read in
+        // parallel, each with its own features, appended in chain order.
+        let whole = pass == 0 && features.is_some();
+        let init = || {
+            (
+                whole.then(|| DrawFeatures::new(&QUANTILE_PROBS)),
+                vec![0.0; grid.len()],
+            )
+        };
+        let fill = |(feat, curve): &mut (Option<DrawFeatures>, Vec<f64>),
+                    row: &DrawRow,
+                    out: &mut [f64]| {
             let density = DrawDensity::new(row);
-            // The first pass also takes each draw's features from its whole curve; its
-            // density columns then read the same values from that curve.
-            let whole = pass == 0 && features.is_some();
-            if whole {
+            if let Some(f) = feat.as_mut() {
                 for (c, &x) in curve.iter_mut().zip(grid) {
                     *c = density.at_on(x, t);
                 }
+                f.push(row, t, curve);
             }
             for (o, col) in out.iter_mut().zip(window) {
                 *o = match *col {
@@ -146,10 +156,15 @@ pub fn summarise_stored(
                     Column::Component(p) => p.value(row),
                 };
             }
-            if let (true, Some(f)) = (whole, features.as_mut()) {
-                f.push(row, t, &curve);
+        };
+        let (values, states) = stored.columns_per_chain(len, window.len(), threads, init, fill)?;
+        if let Some(f) = features.as_mut() {
+            for (chain_features, _) in states {
+                if let Some(cf) = chain_features {
+                    f.append(cf);
+                }
             }
-        })?;
+        }
         for (i, col) in window.iter().enumerate() {
             match *col {
                 Column::Density(j) => {

@@ -162,12 +162,9 @@ impl StoredChains {
         for path in &self.paths {
             let mut r = RowReader::open(path)?;
             for _ in 0..len {
-                let row = r.next_row()?.ok_or_else(|| {
-                    Error::input(format!(
-                        "{}: fewer than {len} rows on a second reading; was the run changed while it was summarised?",
-                        path.display()
-                    ))
-                })?;
+                let row = r
+                    .next_row()?
+                    .ok_or_else(|| short_on_second_reading(path, len))?;
                 fill(row, &mut out);
                 for (col, &v) in values.iter_mut().zip(&out) {
                     col.push(v);
@@ -180,6 +177,81 @@ impl StoredChains {
             values,
         })
     }
+
+    /// [`Self::columns`] with the chains read on up to `threads` threads at once. Each
+    /// chain gets its own state from `init`, which `fill(state, row, out)` may update (the
+    /// states come back in chain order). Every value is computed by the same code whatever
+    /// the thread count, and the columns are assembled chain after chain, so the result
+    /// does not depend on `threads`. Holds the finished columns plus those of the chains
+    /// being read (at most 1 + threads/chains times [`Self::columns`]'s memory).
+    pub fn columns_per_chain<S: Send>(
+        &self,
+        len: usize,
+        width: usize,
+        threads: usize,
+        init: impl Fn() -> S + Sync,
+        fill: impl Fn(&mut S, &DrawRow, &mut [f64]) + Sync,
+    ) -> Result<(Columns, Vec<S>)> {
+        let chains = self.paths.len();
+        let one = |path: &PathBuf| -> Result<(Vec<Vec<f64>>, S)> {
+            let mut state = init();
+            let mut values = vec![Vec::with_capacity(len); width];
+            let mut out = vec![0.0; width];
+            let mut r = RowReader::open(path)?;
+            for _ in 0..len {
+                let row = r
+                    .next_row()?
+                    .ok_or_else(|| short_on_second_reading(path, len))?;
+                fill(&mut state, row, &mut out);
+                for (col, &v) in values.iter_mut().zip(&out) {
+                    col.push(v);
+                }
+            }
+            Ok((values, state))
+        };
+        let mut values = vec![Vec::with_capacity(chains * len); width];
+        let mut states = Vec::with_capacity(chains);
+        let ids: Vec<usize> = (0..chains).collect();
+        for group in ids.chunks(threads.max(1)) {
+            let done: Vec<Result<(Vec<Vec<f64>>, S)>> = std::thread::scope(|scope| {
+                let handles: Vec<_> = group
+                    .iter()
+                    .map(|&c| {
+                        let one = &one;
+                        let path = &self.paths[c];
+                        scope.spawn(move || one(path))
+                    })
+                    .collect();
+                handles
+                    .into_iter()
+                    .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+                    .collect()
+            });
+            for chain in done {
+                let (chain_values, state) = chain?;
+                for (col, v) in values.iter_mut().zip(chain_values) {
+                    col.extend_from_slice(&v);
+                }
+                states.push(state);
+            }
+        }
+        Ok((
+            Columns {
+                chains,
+                len,
+                values,
+            },
+            states,
+        ))
+    }
+}
+
+/// The error for a table that has fewer rows than the first reading counted.
+fn short_on_second_reading(path: &Path, len: usize) -> Error {
+    Error::input(format!(
+        "{}: fewer than {len} rows on a second reading; was the run changed while it was summarised?",
+        path.display()
+    ))
 }
 
 #[cfg(test)]
@@ -254,5 +326,50 @@ mod tests {
         assert!(s.columns(3, 1, |r, out| out[0] = r.loglik).is_err());
         std::fs::remove_file(&a).unwrap();
         std::fs::remove_file(&b).unwrap();
+    }
+
+    /// Reading the chains on several threads gives the sequential reading's columns, and
+    /// each chain's state sees that chain's rows only, in order, whatever the thread count.
+    #[test]
+    fn columns_per_chain_match_columns_for_every_thread_count() {
+        let h = header(1);
+        let texts = [
+            format!("{h}1,-1,1,1,1,10,1\n2,-2,1,1,1,20,1\n3,-3,1,1,1,30,1\n"),
+            format!("{h}1,-4,1,1,1,40,1\n2,-5,1,1,1,50,1\n"),
+            format!("{h}1,-6,1,1,1,60,1\n2,-7,1,1,1,70,1\n"),
+        ];
+        let paths: Vec<PathBuf> = texts
+            .iter()
+            .enumerate()
+            .map(|(i, t)| temp_file(&format!("par{i}"), t))
+            .collect();
+        let s = StoredChains {
+            paths: paths.clone(),
+            ids: vec![1, 2, 3],
+        };
+        let fill = |r: &DrawRow, out: &mut [f64]| {
+            out[0] = r.loglik;
+            out[1] = r.mean[0] * 0.1;
+        };
+        let sequential = s.columns(2, 2, fill).unwrap();
+        for threads in [1, 2, 3, 8] {
+            let (cols, states) = s
+                .columns_per_chain(2, 2, threads, Vec::new, |seen: &mut Vec<f64>, r, out| {
+                    seen.push(r.loglik);
+                    fill(r, out);
+                })
+                .unwrap();
+            assert_eq!(cols.values, sequential.values, "threads {threads}");
+            assert_eq!(
+                states,
+                vec![vec![-1.0, -2.0], vec![-4.0, -5.0], vec![-6.0, -7.0]]
+            );
+        }
+        assert!(s
+            .columns_per_chain(3, 1, 2, || (), |_, r, out| out[0] = r.loglik)
+            .is_err());
+        for p in paths {
+            std::fs::remove_file(&p).unwrap();
+        }
     }
 }

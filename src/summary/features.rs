@@ -46,6 +46,18 @@ impl DrawFeatures {
         self.occupied.push(row.occupied as usize);
     }
 
+    /// Appends the draws of `other` (taken at the same probabilities) after these.
+    pub fn append(&mut self, other: DrawFeatures) {
+        debug_assert_eq!(self.probs, other.probs);
+        self.mean.extend(other.mean);
+        self.sd.extend(other.sd);
+        for (q, o) in self.quantiles.iter_mut().zip(other.quantiles) {
+            q.extend(o);
+        }
+        self.modes.extend(other.modes);
+        self.occupied.extend(other.occupied);
+    }
+
     /// Number of draws.
     pub fn len(&self) -> usize {
         self.mean.len()
