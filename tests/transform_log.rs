@@ -158,6 +158,19 @@ fn log_fit_reports_a_lognormal_shaped_density_with_unit_mass() {
         .as_f64()
         .unwrap();
     assert!((median - mu.exp()).abs() < 0.15, "median {median}");
+    // `diagnose` assesses the same density as `sample` did: the one on the original scale
+    // that bands.csv reports (common practice, no source: the gate must judge what is
+    // reported). Its per-point diagnostics equal those in diagnostics.json.
+    let again = mixband::gate::assess_run(
+        &mixband::store::RunLayout::new(&out),
+        &mixband::gate::ThresholdOverrides::default(),
+    )
+    .unwrap();
+    let written: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("diagnostics.json")).unwrap())
+            .unwrap();
+    let reassessed: serde_json::Value = serde_json::from_slice(&again.to_json().unwrap()).unwrap();
+    assert_eq!(written["density_grid"], reassessed["density_grid"]);
     let _ = std::fs::remove_dir_all(&dir);
 }
 

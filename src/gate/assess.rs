@@ -9,7 +9,6 @@ use super::report::{DiagnosticsReport, RhatScope, DIAGNOSTICS_FORMAT};
 use super::series::{component_series, label_invariant_series, Series};
 use super::thresholds::{ThresholdOverrides, Thresholds};
 use crate::config::{parse_config_str, resolve, HyperChoice, Kernel, RunConfig, WeightsKind};
-use crate::data::Transform;
 use crate::error::{Error, Result};
 use crate::run::{summarise_stored, SummaryPlan};
 use crate::store::{Manifest, RunDraws, RunLayout, RunStatus, ScalarDraws, StoredChains};
@@ -173,10 +172,11 @@ pub fn assess_run(layout: &RunLayout, overrides: &ThresholdOverrides) -> Result<
     let grid = linspace(cfg.grid_from, cfg.grid_to, cfg.grid_points);
     let mut spec = GateSpec::from_config(&cfg, manifest.status == RunStatus::Complete);
     spec.thresholds = spec.thresholds.with(overrides)?;
-    // The density on the fitted scale, as `diagnose` has always assessed it.
+    // The density that bands.csv reports (on the original scale under a transform), as
+    // `sample` and `bands` assess it.
     let plan = SummaryPlan {
         grid: &grid,
-        transform: Transform::None,
+        transform: cfg.transform,
         levels: None,
         gate: Some(spec),
         columns_per_pass: None,

@@ -87,9 +87,11 @@ pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
     if let Some(g) = gate_grid(inp) {
         return Ok(Some(g));
     }
-    // The density on the fitted scale at each grid point, a window of points per reading
-    // of the tables (bounded memory, as for the summaries).
+    // The density that bands.csv reports (on the original scale under a transform) at each
+    // grid point, a window of points per reading of the tables (bounded memory, as for the
+    // summaries).
     let grid = &inp.bands.grid;
+    let t = inp.prep.config.transform;
     let stored = StoredChains::new(&inp.layout.draws_dir(), &inp.manifest.chain_ids());
     let len = inp.draws.min_len();
     let width = crate::run::window_width(inp.draws.chains.len() * len);
@@ -100,7 +102,7 @@ pub fn grid_diagnostics(inp: &RunInputs) -> Result<Option<GridDiagnostics>> {
         let cols = stored.columns(len, window.len(), |row, out| {
             let density = DrawDensity::new(row);
             for (o, &i) in out.iter_mut().zip(window) {
-                *o = density.at(grid[i]);
+                *o = density.at_on(grid[i], t);
             }
         })?;
         for i in 0..window.len() {
