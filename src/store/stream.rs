@@ -148,34 +148,17 @@ impl StoredChains {
     }
 
     /// Evaluates `width` columns, `fill(row, out)` writing one value per column into `out`,
-    /// for the first `len` rows of every chain. Holds `width × chains × len` values, never
-    /// the rows themselves.
+    /// for the first `len` rows of every chain, reading one chain at a time. Holds
+    /// `width × chains × len` values, never the rows themselves.
     pub fn columns(
         &self,
         len: usize,
         width: usize,
-        mut fill: impl FnMut(&DrawRow, &mut [f64]),
+        fill: impl Fn(&DrawRow, &mut [f64]) + Sync,
     ) -> Result<Columns> {
-        let chains = self.paths.len();
-        let mut values = vec![Vec::with_capacity(chains * len); width];
-        let mut out = vec![0.0; width];
-        for path in &self.paths {
-            let mut r = RowReader::open(path)?;
-            for _ in 0..len {
-                let row = r
-                    .next_row()?
-                    .ok_or_else(|| short_on_second_reading(path, len))?;
-                fill(row, &mut out);
-                for (col, &v) in values.iter_mut().zip(&out) {
-                    col.push(v);
-                }
-            }
-        }
-        Ok(Columns {
-            chains,
-            len,
-            values,
-        })
+        let (columns, _) =
+            self.columns_per_chain(len, width, 1, || (), |_, row, out| fill(row, out))?;
+        Ok(columns)
     }
 
     /// [`Self::columns`] with the chains read on up to `threads` threads at once. Each
@@ -328,8 +311,9 @@ mod tests {
         std::fs::remove_file(&b).unwrap();
     }
 
-    /// Reading the chains on several threads gives the sequential reading's columns, and
-    /// each chain's state sees that chain's rows only, in order, whatever the thread count.
+    /// Reading the chains on one or several threads gives the same columns, laid out chain
+    /// after chain, and each chain's state sees that chain's rows only, in order, whatever
+    /// the thread count.
     #[test]
     fn columns_per_chain_match_columns_for_every_thread_count() {
         let h = header(1);
@@ -351,7 +335,11 @@ mod tests {
             out[0] = r.loglik;
             out[1] = r.mean[0] * 0.1;
         };
-        let sequential = s.columns(2, 2, fill).unwrap();
+        let expected = vec![
+            vec![-1.0, -2.0, -4.0, -5.0, -6.0, -7.0],
+            vec![1.0, 2.0, 4.0, 5.0, 6.0, 7.0],
+        ];
+        assert_eq!(s.columns(2, 2, fill).unwrap().values, expected);
         for threads in [1, 2, 3, 8] {
             let (cols, states) = s
                 .columns_per_chain(2, 2, threads, Vec::new, |seen: &mut Vec<f64>, r, out| {
@@ -359,7 +347,7 @@ mod tests {
                     fill(r, out);
                 })
                 .unwrap();
-            assert_eq!(cols.values, sequential.values, "threads {threads}");
+            assert_eq!(cols.values, expected, "threads {threads}");
             assert_eq!(
                 states,
                 vec![vec![-1.0, -2.0], vec![-4.0, -5.0], vec![-6.0, -7.0]]
