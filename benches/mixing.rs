@@ -27,66 +27,9 @@ use mixband::summary::linspace;
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
 
-/// A normal mixture: (weight, mean, sd) per component.
-struct Density {
-    name: &'static str,
-    parts: Vec<(f64, f64, f64)>,
-}
-
-fn densities() -> Vec<Density> {
-    let comb = (0..6)
-        .map(|l| {
-            let l = l as f64;
-            (
-                2f64.powf(5.0 - l) / 63.0,
-                (65.0 - 96.0 * 0.5f64.powf(l)) / 21.0,
-                (32.0 / 63.0) / 2f64.powf(l),
-            )
-        })
-        .collect();
-    vec![
-        Density {
-            name: "MW2 skewed",
-            parts: vec![
-                (0.2, 0.0, 1.0),
-                (0.2, 0.5, 2.0 / 3.0),
-                (0.6, 13.0 / 12.0, 5.0 / 9.0),
-            ],
-        },
-        Density {
-            name: "MW6 bimodal",
-            parts: vec![(0.5, -1.0, 2.0 / 3.0), (0.5, 1.0, 2.0 / 3.0)],
-        },
-        Density {
-            name: "MW8 asym bimodal",
-            parts: vec![(0.75, 0.0, 1.0), (0.25, 1.5, 1.0 / 3.0)],
-        },
-        Density {
-            name: "MW14 smooth comb",
-            parts: comb,
-        },
-    ]
-}
-
-fn sample_csv(d: &Density, n: usize, seed: u64) -> Vec<u8> {
-    let mut rng = ChaCha8Rng::seed_from_u64(seed);
-    let mut out = String::from("value\n");
-    for _ in 0..n {
-        let u: f64 = rand::Rng::random(&mut rng);
-        let mut acc = 0.0;
-        let mut pick = d.parts.len() - 1;
-        for (j, p) in d.parts.iter().enumerate() {
-            acc += p.0;
-            if u < acc {
-                pick = j;
-                break;
-            }
-        }
-        let (_, m, s) = d.parts[pick];
-        out.push_str(&format!("{}\n", mixband::dist::normal(m, s, &mut rng)));
-    }
-    out.into_bytes()
-}
+#[path = "support/densities.rs"]
+mod densities;
+use densities::{densities, sample_csv};
 
 /// One weight-prior setting, as config lines.
 struct Variant {
