@@ -149,7 +149,9 @@ fn main() {
     let root = keep.clone().unwrap_or_else(|| scratch.clone());
     let mut all = densities();
     all.push(demo_density());
-    println!("Time to a converged answer: `mixband sample` with the defaults, 4 chains, this machine");
+    println!(
+        "Time to a converged answer: `mixband sample` with the defaults, 4 chains, this machine"
+    );
     println!(
         "{:<18} {:>9} {:>9} {:>14} {:>11} {:>12} {:>10}",
         "density", "n", "wall s", "gate", "lowest ESS", "ESS/draw", "ESS/s"

@@ -125,6 +125,8 @@ pub fn run<R: Rng + ?Sized>(
         return tally;
     }
     let half = HalfSteps::new(prior.var_shape, n_obs);
+    // ln n for the sides' sizes, the same values ln_positive gives, computed once.
+    let ln_n: Vec<f64> = (0..=n_obs).map(|v| ln_positive(v as f64)).collect();
     let mut members: Vec<usize> = Vec::new();
     let mut to_b: Vec<bool> = Vec::new();
     for _ in 0..proposals {
@@ -183,7 +185,7 @@ pub fn run<R: Rng + ?Sized>(
                 (i, j),
                 &members,
                 Follow(z, cj),
-                (prior, state, &half),
+                (prior, state, &half, &ln_n),
                 rng,
                 &mut to_b,
             );
@@ -206,7 +208,7 @@ pub fn run<R: Rng + ?Sized>(
             (i, j),
             &members,
             Draw,
-            (prior, state, &half),
+            (prior, state, &half, &ln_n),
             rng,
             &mut to_b,
         );
@@ -249,12 +251,12 @@ struct Draw;
 struct Follow<'a>(&'a [u32], usize);
 
 trait Side {
-    fn goes_b<R: Rng + ?Sized>(&self, k: usize, log_p_b: f64, rng: &mut R) -> bool;
+    fn goes_b<R: Rng + ?Sized>(&self, k: usize, p_b: f64, rng: &mut R) -> bool;
 }
 
 impl Side for Draw {
-    fn goes_b<R: Rng + ?Sized>(&self, _: usize, log_p_b: f64, rng: &mut R) -> bool {
-        rng.random::<f64>() < log_p_b.exp()
+    fn goes_b<R: Rng + ?Sized>(&self, _: usize, p_b: f64, rng: &mut R) -> bool {
+        rng.random::<f64>() < p_b
     }
 }
 
@@ -272,7 +274,7 @@ fn sequential<R: Rng + ?Sized, S: Side>(
     (i, j): (usize, usize),
     members: &[usize],
     side: S,
-    (prior, state, half): (&Prior, &State, &HalfSteps),
+    (prior, state, half, ln_n): (&Prior, &State, &HalfSteps, &[f64]),
     rng: &mut R,
     to_b: &mut Vec<bool>,
 ) -> (Running, Running, f64) {
@@ -288,19 +290,27 @@ fn sequential<R: Rng + ?Sized, S: Side>(
         let wa = lna + log_predictive(prior.kernel, &ta, x[k]);
         let wb = lnb + log_predictive(prior.kernel, &tb, x[k]);
         // ln P(B) = wb − ln(e^wa + e^wb), computed stably.
+        // P(B) from r = e^(lo − hi) without a further exponential: 1/(1 + r) when B is the
+        // likelier side, r/(1 + r) otherwise.
         let (hi, lo) = if wa >= wb { (wa, wb) } else { (wb, wa) };
-        let log_norm = hi + ln_fast_f64(1.0 + exp_fast(lo - hi));
-        let goes_b = side.goes_b(k, wb - log_norm, rng);
+        let r = exp_fast(lo - hi);
+        let log_norm = hi + ln_fast_f64(1.0 + r);
+        let p_b = if wb > wa {
+            1.0 / (1.0 + r)
+        } else {
+            r / (1.0 + r)
+        };
+        let goes_b = side.goes_b(k, p_b, rng);
         if goes_b {
             log_q += wb - log_norm;
             b.push(x[k]);
             tb = terms(&b);
-            lnb = ln_positive(b.stats.0 as f64);
+            lnb = ln_n[b.stats.0 as usize];
         } else {
             log_q += wa - log_norm;
             a.push(x[k]);
             ta = terms(&a);
-            lna = ln_positive(a.stats.0 as f64);
+            lna = ln_n[a.stats.0 as usize];
         }
         to_b.push(goes_b);
     }
