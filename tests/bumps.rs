@@ -26,7 +26,11 @@ fn three_separated_bumps_are_found_where_the_truth_has_them() {
     let s = summary(&prep, &draws);
     for &m in &modes {
         let b = bump_at(&s, m).expect("a bump where the truth has a mode");
-        assert!(b.probability > 0.95, "mode {m}: probability {}", b.probability);
+        assert!(
+            b.probability > 0.95,
+            "mode {m}: probability {}",
+            b.probability
+        );
         let (lo, hi) = interval(b.location.as_ref().unwrap(), 0.95);
         assert!(lo <= m && m <= hi, "mode {m} outside [{lo}, {hi}]");
         // Height: near the truth's density at its mode (a loose check: a 95% interval
@@ -36,7 +40,12 @@ fn three_separated_bumps_are_found_where_the_truth_has_them() {
         let got = b.height.as_ref().unwrap().median;
         assert!((got / h - 1.0).abs() < 0.2, "height {got} against {h}");
     }
-    let likely: Vec<_> = s.shape.bumps.iter().filter(|b| b.probability > 0.5).collect();
+    let likely: Vec<_> = s
+        .shape
+        .bumps
+        .iter()
+        .filter(|b| b.probability > 0.5)
+        .collect();
     assert_eq!(likely.len(), 3, "{:?}", s.shape.bumps);
     // The dips between the three: deep (ratio about 0.03), visible in every draw, and
     // located around the true antimodes.
@@ -55,7 +64,12 @@ fn a_normal_sample_has_one_bump() {
     let dir = scratch_dir("bumps-normal");
     let (prep, draws) = fit(&dir, &sample(&truth, 1000, 12), SAMPLER, "");
     let s = summary(&prep, &draws);
-    let likely: Vec<_> = s.shape.bumps.iter().filter(|b| b.probability >= 0.5).collect();
+    let likely: Vec<_> = s
+        .shape
+        .bumps
+        .iter()
+        .filter(|b| b.probability >= 0.5)
+        .collect();
     assert_eq!(likely.len(), 1, "{:?}", s.shape.bumps);
     let (lo, hi) = interval(likely[0].location.as_ref().unwrap(), 0.95);
     assert!(lo <= 5.0 && 5.0 <= hi, "[{lo}, {hi}]");
@@ -69,10 +83,7 @@ fn same_json(a: &serde_json::Value, b: &serde_json::Value, tol: f64, at: &str) {
     match (a, b) {
         (Number(x), Number(y)) => {
             let (x, y) = (x.as_f64().unwrap(), y.as_f64().unwrap());
-            assert!(
-                (x - y).abs() <= tol * x.abs().max(1.0),
-                "{at}: {x} vs {y}"
-            );
+            assert!((x - y).abs() <= tol * x.abs().max(1.0), "{at}: {x} vs {y}");
         }
         (Array(x), Array(y)) => {
             assert_eq!(x.len(), y.len(), "{at}: lengths");
@@ -81,7 +92,11 @@ fn same_json(a: &serde_json::Value, b: &serde_json::Value, tol: f64, at: &str) {
             }
         }
         (Object(x), Object(y)) => {
-            assert_eq!(x.keys().collect::<Vec<_>>(), y.keys().collect::<Vec<_>>(), "{at}");
+            assert_eq!(
+                x.keys().collect::<Vec<_>>(),
+                y.keys().collect::<Vec<_>>(),
+                "{at}"
+            );
             for (k, p) in x {
                 same_json(p, &y[k], tol, &format!("{at}.{k}"));
             }
@@ -133,7 +148,10 @@ fn permuting_component_labels_leaves_summary_json_unchanged() {
         assert_eq!(strip(&want[key]), strip(&got[key]), "{key}");
     }
     // The permutation really changed the stored columns.
-    assert_ne!(draws.chains[0].rows[0].mean, permuted(&draws).chains[0].rows[0].mean);
+    assert_ne!(
+        draws.chains[0].rows[0].mean,
+        permuted(&draws).chains[0].rows[0].mean
+    );
 }
 
 fn collect_probabilities(v: &serde_json::Value, out: &mut Vec<f64>) {
@@ -163,8 +181,15 @@ fn direct_modes(grid: &[f64], f: &[f64]) -> Vec<f64> {
         if !(f[i] > f[i - 1] && f[i] > f[i + 1]) {
             continue;
         }
-        let left = f[..i].iter().rev().take_while(|&&v| v <= f[i]).fold(f[i], |m, &v| m.min(v));
-        let right = f[i + 1..].iter().take_while(|&&v| v <= f[i]).fold(f[i], |m, &v| m.min(v));
+        let left = f[..i]
+            .iter()
+            .rev()
+            .take_while(|&&v| v <= f[i])
+            .fold(f[i], |m, &v| m.min(v));
+        let right = f[i + 1..]
+            .iter()
+            .take_while(|&&v| v <= f[i])
+            .fold(f[i], |m, &v| m.min(v));
         if f[i] - left.max(right) >= 0.01 * top {
             out.push(grid[i]);
         }
@@ -182,8 +207,14 @@ fn region_probabilities_agree_with_a_direct_count_over_draws() {
     let truth = [(0.5, 0.0, 1.0), (0.2, 2.6, 0.6), (0.3, 5.0, 1.0)];
     let dir = scratch_dir("bumps-regions");
     let regions = [(-0.8, 0.8), (2.0, 3.2), (4.0, 6.0), (-10.0, 20.0)];
-    let text: Vec<String> = regions.iter().map(|(a, b)| format!("[{a:?}, {b:?}]")).collect();
-    let extra = format!("[shape]\nregions = [{}]\nregion_mass = 0.15\n", text.join(", "));
+    let text: Vec<String> = regions
+        .iter()
+        .map(|(a, b)| format!("[{a:?}, {b:?}]"))
+        .collect();
+    let extra = format!(
+        "[shape]\nregions = [{}]\nregion_mass = 0.15\n",
+        text.join(", ")
+    );
     let (prep, draws) = fit(&dir, &sample(&truth, 400, 14), SAMPLER, &extra);
     let s = summary(&prep, &draws);
     let c = &prep.config;
@@ -201,13 +232,21 @@ fn region_probabilities_agree_with_a_direct_count_over_draws() {
                 .collect();
             let f: Vec<f64> = grid
                 .iter()
-                .map(|&x| comps.iter().zip(&row.weight).map(|(c, w)| w * c.pdf(x)).sum())
+                .map(|&x| {
+                    comps
+                        .iter()
+                        .zip(&row.weight)
+                        .map(|(c, w)| w * c.pdf(x))
+                        .sum()
+                })
                 .collect();
             let m = direct_modes(&grid, &f);
             if m.iter().any(|&x| a <= x && x <= b) {
                 with_mode += 1;
             }
-            if m.iter().any(|&x| (x - a).abs() <= step || (x - b).abs() <= step) {
+            if m.iter()
+                .any(|&x| (x - a).abs() <= step || (x - b).abs() <= step)
+            {
                 near_end += 1;
             }
             let mass: f64 = comps
@@ -230,13 +269,21 @@ fn region_probabilities_agree_with_a_direct_count_over_draws() {
         assert!((r.probability_mass_above - heavy as f64 / total).abs() < 1e-12);
         masses.sort_by(f64::total_cmp);
         let median = mixband::summary::quantile_sorted(&masses, 0.5);
-        assert!((r.mass.median - median).abs() < 1e-9, "{} vs {median}", r.mass.median);
+        assert!(
+            (r.mass.median - median).abs() < 1e-9,
+            "{} vs {median}",
+            r.mass.median
+        );
     }
     // The whole line: every draw has a mode there and nearly all its mass (empty
     // components drawn from the prior may put a sliver outside).
     let whole = &s.shape.regions[3];
     assert_eq!(whole.probability_mode, 1.0);
-    assert!((whole.mass.median - 1.0).abs() < 1e-4, "{}", whole.mass.median);
+    assert!(
+        (whole.mass.median - 1.0).abs() < 1e-4,
+        "{}",
+        whole.mass.median
+    );
     // The middle region is a real question here: neither certain nor impossible.
     assert!(s.shape.regions[1].probability_mode > 0.05);
 }

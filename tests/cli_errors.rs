@@ -523,7 +523,7 @@ fn shape_region_with_ends_reversed() {
     bad_config(
         "shape_region_reversed",
         &cfg,
-        &["[shape] regions", "region 2", "from < to", "line 12"],
+        &["[shape] regions entry 2 is [4, 3]", "from < to", "line 11"],
     );
 }
 
@@ -533,6 +533,6 @@ fn shape_dip_ratio_outside_the_unit_interval() {
     bad_config(
         "shape_dip_ratio",
         &cfg,
-        &["[shape] dip_ratio", "strictly between 0 and 1", "line 12"],
+        &["[shape] dip_ratio", "strictly between 0 and 1", "line 11"],
     );
 }

@@ -41,7 +41,7 @@ pub fn resolve_shape(s: Option<&ShapeSection>) -> Result<ShapeSpec, (&'static st
             return Err((
                 "regions",
                 format!(
-                    "region {n} must be a pair [from, to], got {} numbers",
+                    "entry {n} must be a pair [from, to], got {} numbers",
                     r.len()
                 ),
             ));
@@ -49,7 +49,7 @@ pub fn resolve_shape(s: Option<&ShapeSection>) -> Result<ShapeSpec, (&'static st
         if !(from.is_finite() && to.is_finite() && from < to) {
             return Err((
                 "regions",
-                format!("region {n} must have finite ends with from < to, got [{from}, {to}]"),
+                format!("entry {n} is [{from}, {to}]; each entry needs finite ends with from < to"),
             ));
         }
         regions.push(Region { from, to });
@@ -86,7 +86,7 @@ mod tests {
             regions: Some(vec![vec![1.0, 2.0], vec![5.0, 3.0]]),
             ..Default::default()
         });
-        assert!(e.0 == "regions" && e.1.contains("region 2"), "{e:?}");
+        assert!(e.0 == "regions" && e.1.contains("entry 2"), "{e:?}");
         let e = bad(ShapeSection {
             regions: Some(vec![vec![1.0]]),
             ..Default::default()

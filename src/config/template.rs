@@ -83,8 +83,7 @@ mod tests {
         let on = TEMPLATE.replace("# regions = [[70.0, 76.0]]", "regions = [[70, 76.5]]");
         let raw = crate::config::parse_config_str(&on, "template").unwrap();
         let cfg =
-            crate::config::resolve(&raw, &on, "template", std::path::Path::new("."), None)
-                .unwrap();
+            crate::config::resolve(&raw, &on, "template", std::path::Path::new("."), None).unwrap();
         assert_eq!(cfg.shape.regions.len(), 1);
         assert_eq!(cfg.shape.regions[0].from, 70.0);
     }

@@ -135,12 +135,7 @@ pub fn summarise_stored(
         // density columns then read the same values from that curve. Chains are read in
         // parallel, each with its own features, appended in chain order.
         let whole = pass == 0 && features.is_some();
-        let init = || {
-            (
-                whole.then(new_features),
-                vec![0.0; grid.len()],
-            )
-        };
+        let init = || (whole.then(new_features), vec![0.0; grid.len()]);
         let fill = |(feat, curve): &mut (Option<DrawFeatures>, Vec<f64>),
                     row: &DrawRow,
                     out: &mut [f64]| {

@@ -93,9 +93,8 @@ pub fn fit(dir: &Path, x: &[f64], sampler: &str, extra: &str) -> (Prepared, RunD
         csv.push_str(&format!("{v:?}\n"));
     }
     std::fs::write(dir.join("data.csv"), csv).unwrap();
-    let config = format!(
-        "[data]\nfile = \"data.csv\"\ncolumn = \"x\"\n\n[sampler]\n{sampler}\n\n{extra}\n"
-    );
+    let config =
+        format!("[data]\nfile = \"data.csv\"\ncolumn = \"x\"\n\n[sampler]\n{sampler}\n\n{extra}\n");
     let (prep, draws, _) = common::run_to_density(dir, &config, (0.0, 1.0, 2));
     (prep, draws)
 }
@@ -122,9 +121,10 @@ pub fn summary(prep: &Prepared, draws: &RunDraws) -> SummaryFile {
 
 /// The bump of the summary whose stretch holds `x`.
 pub fn bump_at(s: &SummaryFile, x: f64) -> Option<&BumpSummary> {
-    s.shape.bumps.iter().find(|b| {
-        b.from.is_none_or(|f| f < x) && b.to.is_none_or(|t| x <= t)
-    })
+    s.shape
+        .bumps
+        .iter()
+        .find(|b| b.from.is_none_or(|f| f < x) && b.to.is_none_or(|t| x <= t))
 }
 
 /// The interval at `level` of a posterior summary.
