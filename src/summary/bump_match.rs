@@ -159,9 +159,9 @@ pub fn assign(bumps: &[DrawBump], splits: &[f64], stand: &mut [Option<usize>]) {
 /// dips recorded between consecutive bumps a..=b.
 fn lowest_between(bumps: &[DrawBump], a: usize, b: usize) -> (f64, f64) {
     let mut best = (bumps[a + 1].dip_location, bumps[a + 1].dip_height);
-    for k in a + 2..=b {
-        if bumps[k].dip_height < best.1 {
-            best = (bumps[k].dip_location, bumps[k].dip_height);
+    for bump in &bumps[a + 2..=b] {
+        if bump.dip_height < best.1 {
+            best = (bump.dip_location, bump.dip_height);
         }
     }
     best
