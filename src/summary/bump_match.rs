@@ -166,3 +166,81 @@ fn lowest_between(bumps: &[DrawBump], a: usize, b: usize) -> (f64, f64) {
     }
     best
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn bump(location: f64, height: f64, dip: (f64, f64)) -> DrawBump {
+        DrawBump {
+            location,
+            height,
+            prominence: height,
+            dip_location: dip.0,
+            dip_height: dip.1,
+        }
+    }
+
+    /// Features of hand-made draws (only their bumps matter here).
+    fn features(draws: &[Vec<DrawBump>], dip_ratio: f64) -> DrawFeatures {
+        let mut f = DrawFeatures::new(&[]);
+        f.shape.dip_ratio = dip_ratio;
+        for d in draws {
+            f.mean.push(0.0);
+            f.bumps.extend(d.iter().copied());
+            f.bump_end.push(f.bumps.len());
+        }
+        f
+    }
+
+    #[test]
+    fn draws_are_matched_by_stretch_and_dips_span_intermediate_modes() {
+        // Posterior mean with modes at x = 2 and x = 7 and its lowest point between them at
+        // x = 5: stretches (−∞, 5] and (5, ∞). Worked by hand (common practice, no source).
+        let grid: Vec<f64> = (0..11).map(|i| i as f64).collect();
+        let mean = [0.0, 1.0, 3.0, 2.0, 1.5, 1.0, 1.8, 2.5, 1.0, 0.5, 0.0];
+        let draws = vec![
+            // Both bumps; dip ratio 0.5 / 2 = 0.25.
+            vec![bump(2.1, 3.0, (2.1, 3.0)), bump(6.9, 2.0, (4.8, 0.5))],
+            // Only the left bump.
+            vec![bump(1.8, 3.5, (1.8, 3.5))],
+            // Both, with a lower extra mode at 4 in the left stretch: the higher (1.9)
+            // stands for bump 1, and the dip to bump 2 is the lower of the two recorded
+            // dips after it (3.0 at 1.2 < 1.6 at 5.5): ratio 1.2 / 1.9 ≈ 0.63.
+            vec![
+                bump(1.9, 3.0, (1.9, 3.0)),
+                bump(4.0, 1.3, (3.0, 1.2)),
+                bump(7.2, 1.9, (5.5, 1.6)),
+            ],
+            // Only a mode right at the split (5 belongs to the left stretch).
+            vec![bump(5.0, 1.0, (5.0, 1.0))],
+        ];
+        let f = features(&draws, 0.5);
+        let (bumps, dips) = match_bumps(&f, &grid, &mean, &[0.5]);
+        assert_eq!(bumps.len(), 2);
+        assert_eq!((bumps[0].reference, bumps[1].reference), (2.0, 7.0));
+        assert_eq!((bumps[0].from, bumps[0].to), (None, Some(5.0)));
+        assert_eq!((bumps[1].from, bumps[1].to), (Some(5.0), None));
+        assert_eq!(bumps[0].probability, 1.0);
+        assert_eq!(bumps[1].probability, 0.5);
+        // Bump 1's locations: 2.1, 1.8, 1.9, 5.0 → median 2.0 (numpy's default quantile).
+        assert!((bumps[0].location.as_ref().unwrap().median - 2.0).abs() < 1e-12);
+        let d = &dips[0];
+        assert_eq!(d.between, [1, 2]);
+        assert_eq!(d.probability_both, 0.5);
+        let loc = d.location.as_ref().unwrap();
+        assert!((loc.median - 0.5 * (4.8 + 3.0)).abs() < 1e-12);
+        let r = d.ratio.as_ref().unwrap();
+        assert!((r.median - 0.5 * (0.25 + 1.2 / 1.9)).abs() < 1e-12);
+        // Visible below 0.5: only the first draw, of four.
+        assert_eq!(d.probability_visible, 0.25);
+    }
+
+    #[test]
+    fn no_mode_in_the_mean_gives_no_bumps() {
+        let grid: Vec<f64> = (0..5).map(|i| i as f64).collect();
+        let f = features(&[vec![bump(1.0, 1.0, (1.0, 1.0))]], 0.9);
+        let (b, d) = match_bumps(&f, &grid, &[0.0, 1.0, 2.0, 3.0, 4.0], &[0.9]);
+        assert!(b.is_empty() && d.is_empty());
+    }
+}
