@@ -7,7 +7,7 @@ use std::path::Path;
 
 use plotters::prelude::*;
 
-use super::canvas::{font, plot_err, svg_document, tick_formatter, Area};
+use super::canvas::{font, frame_metadata, plot_err, svg_document, tick_formatter, Area, Frame};
 use super::density::{draw_heading, draw_legend, LegendMark};
 use super::inputs::RunInputs;
 use super::style;
@@ -85,6 +85,7 @@ pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
     order.sort_by(|&a, &b| cdf.bands[b].0.total_cmp(&cdf.bands[a].0));
     let mut obs: Vec<f64> = inp.observations.clone();
     obs.sort_by(f64::total_cmp);
+    let mut frame = None;
     let draw = |root: &Area<'_>| -> Result<()> {
         draw_heading(root, &title, inp, not_converged)?;
         let mut legend: Vec<(String, LegendMark)> = order
@@ -158,9 +159,16 @@ pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
                 ShapeStyle::from(style::ACCENT).stroke_width(1),
             )))
             .map_err(plot_err)?;
+        frame = Some(Frame::of(&chart, (x0, x1), (0.0, 1.0)));
         Ok(())
     };
-    svg_document(style::DENSITY_SIZE, &title, None, draw)
+    let svg = svg_document(style::DENSITY_SIZE, &title, None, draw)?;
+    // The data-to-pixel map, measured while drawing, goes in after the title (as in
+    // density.svg).
+    Ok(match (frame, svg.find("</title>")) {
+        (Some(f), Some(i)) => format!("{}{}{}", &svg[..i + 8], frame_metadata(&f), &svg[i + 8..]),
+        _ => svg,
+    })
 }
 
 /// cdf.svg for the run, or `None` when it has no readable cdf.csv (runs summarised
