@@ -123,9 +123,23 @@ pub fn draw_bump_marks<'a, DB: DrawingBackend>(
                 ink.filled(),
             )))
             .map_err(plot_err)?;
+        // A light patch behind the label keeps it readable over bands and curve (width:
+        // about 0.55 em a character).
+        let label = prob_text(m.probability);
+        let w = label.chars().count() as f64 * style::NOTE_SIZE as f64 * 0.55 + 6.0;
+        let left = mid + half + 3.0 * per_px_x;
+        chart
+            .draw_series(std::iter::once(Rectangle::new(
+                [
+                    (left, y - 9.0 * per_px_y),
+                    (left + w * per_px_x, y + 9.0 * per_px_y),
+                ],
+                style::PAPER.mix(0.75).filled(),
+            )))
+            .map_err(plot_err)?;
         chart
             .draw_series(std::iter::once(Text::new(
-                prob_text(m.probability),
+                label,
                 (mid + half + 6.0 * per_px_x, y),
                 font(style::NOTE_SIZE, ink).pos(Pos::new(HPos::Left, VPos::Center)),
             )))
