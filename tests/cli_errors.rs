@@ -516,3 +516,23 @@ fn resume_and_extend_of_a_non_run() {
     );
     assert_input_error(&s.run(&["extend", "empty", "--draws", "0"]), &["--draws"]);
 }
+
+#[test]
+fn shape_region_with_ends_reversed() {
+    let cfg = with_line("[shape]\nregions = [[1.0, 2.0], [4.0, 3.0]]");
+    bad_config(
+        "shape_region_reversed",
+        &cfg,
+        &["[shape] regions entry 2 is [4, 3]", "from < to", "line 11"],
+    );
+}
+
+#[test]
+fn shape_dip_ratio_outside_the_unit_interval() {
+    let cfg = with_line("[shape]\ndip_ratio = 1.5");
+    bad_config(
+        "shape_dip_ratio",
+        &cfg,
+        &["[shape] dip_ratio", "strictly between 0 and 1", "line 11"],
+    );
+}

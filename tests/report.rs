@@ -79,9 +79,19 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
         "CSS must not load anything"
     );
 
-    // The density, trace, rank and grid figures are inline.
+    // The density, CDF, trace, rank and grid figures are inline.
     let svgs = doc.descendants().filter(|n| n.has_tag_name("svg")).count();
-    assert_eq!(svgs, 4);
+    assert_eq!(svgs, 5);
+
+    // The bump table has one row per bump of summary.json.
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(run.join("summary.json")).unwrap()).unwrap();
+    let table = doc
+        .descendants()
+        .find(|n| n.attribute("id") == Some("bumps"))
+        .expect("a bump table");
+    let rows = table.descendants().filter(|n| n.has_tag_name("tr")).count();
+    assert_eq!(rows, 1 + summary["bumps"].as_array().unwrap().len());
 
     // The download is RUN/bands.csv byte for byte.
     let link = doc

@@ -37,7 +37,8 @@ fn config(transform: &str, kernel: &str) -> String {
         "[data]\nfile = \"data.csv\"\ncolumn = \"value\"\ntransform = \"{transform}\"\n\
          [model]\nkernel = \"{kernel}\"\nweights = \"stick-breaking\"\ncomponents = 5\n\
          [sampler]\nchains = 3\nwarmup = 20\ndraws = 45\nseed = 4242\nallocation = \"conditional\"\n\
-         [grid]\npoints = 23\n"
+         [grid]\npoints = 23\n\
+         [shape]\nregions = [[1.0, 3.0], [4.0, 6.5]]\n"
     )
 }
 
@@ -115,6 +116,7 @@ fn check_run(tag: &str, transform: &str, kernel: &str) {
             levels,
             gate,
             columns_per_pass: None,
+            shape: Some(&c.shape),
         };
         let want = summarise_in_memory(&draws, &plan);
         let want_files = files(&dir.join(format!("mem-{p}")), &want);

@@ -2,8 +2,7 @@
 
 use std::path::Path;
 
-use crate::config::resolve_check_levels;
-use crate::data::Transform;
+use crate::config::{resolve_check_levels, RunConfig};
 use crate::error::{Error, Result};
 use crate::gate::{DiagnosticsReport, GateSpec};
 use crate::run::{
@@ -20,7 +19,7 @@ pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<Diagnosti
     let manifest = Manifest::read(&layout.manifest())?;
     let grid = linspace(c.grid_from, c.grid_to, c.grid_points);
     let spec = GateSpec::from_config(c, manifest.status == RunStatus::Complete);
-    let s = summaries(layout, &manifest, &grid, &c.levels, c.transform, Some(spec))?;
+    let s = summaries(layout, &manifest, &grid, &c.levels, c, Some(spec))?;
     let report = s
         .report
         .ok_or_else(|| Error::internal("the gate was not assessed"))?;
@@ -35,7 +34,7 @@ fn summaries(
     manifest: &Manifest,
     grid: &[f64],
     levels: &[f64],
-    t: Transform,
+    c: &RunConfig,
     gate: Option<GateSpec>,
 ) -> Result<Summaries> {
     let stored = StoredChains::new(&layout.draws_dir(), &manifest.chain_ids());
@@ -48,10 +47,11 @@ fn summaries(
     }
     let plan = SummaryPlan {
         grid,
-        transform: t,
+        transform: c.transform,
         levels: Some(levels),
         gate,
         columns_per_pass: None,
+        shape: Some(&c.shape),
     };
     summarise_stored(&stored, &scalars, &plan)
 }
@@ -78,11 +78,11 @@ fn write_for_grid(
     to: f64,
     points: usize,
     levels: &[f64],
-    t: Transform,
+    c: &RunConfig,
 ) -> Result<()> {
     let manifest = Manifest::read(&layout.manifest())?;
     let grid = linspace(from, to, points);
-    let s = summaries(layout, &manifest, &grid, levels, t, None)?;
+    let s = summaries(layout, &manifest, &grid, levels, c, None)?;
     let converged = DiagnosticsReport::read(&layout.diagnostics_json())
         .ok()
         .map(|r| r.passed);
@@ -114,7 +114,7 @@ pub(super) fn bands(
         )));
     }
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
-    write_for_grid(&layout, from, to, points, &levels, c.transform)?;
+    write_for_grid(&layout, from, to, points, &levels, c)?;
     println!(
         "mixband: wrote {}, {}, {} and {}",
         layout.bands_csv().display(),

@@ -7,6 +7,7 @@
 pub mod locate;
 pub mod raw;
 mod resolve;
+pub mod shape;
 mod template;
 
 pub use raw::{AllocationKind, HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};

@@ -60,6 +60,7 @@ pub struct RawConfig {
     pub grid: Option<GridSection>,
     pub bands: Option<BandsSection>,
     pub gate: Option<GateSection>,
+    pub shape: Option<super::shape::ShapeSection>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

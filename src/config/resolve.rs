@@ -76,6 +76,8 @@ pub struct RunConfig {
     pub max_rhat: f64,
     pub min_ess: f64,
     pub min_chains: usize,
+    /// `[shape]`: regions of interest and the thresholds of the shape summaries.
+    pub shape: crate::summary::ShapeSpec,
 }
 
 /// Every prior hyperparameter, in the units of the data.
@@ -334,6 +336,8 @@ pub fn resolve(
         ));
     }
     let min_chains = ck.int_in("gate", "min_chains", gate.min_chains, 1, MAX_CHAINS, 2)?;
+    let shape = super::shape::resolve_shape(raw.shape.as_ref())
+        .map_err(|(key, m)| ck.fail("shape", key, m))?;
 
     // Data-dependent defaults. Without a summary (e.g. `template` checks) use unit scale.
     let (c, lo, hi) = match summary {
@@ -422,6 +426,7 @@ pub fn resolve(
         max_rhat,
         min_ess,
         min_chains,
+        shape,
     })
 }
 
@@ -547,6 +552,7 @@ impl RunConfig {
                 min_ess: Some(self.min_ess),
                 min_chains: Some(self.min_chains as i64),
             }),
+            shape: Some(super::shape::shape_section(&self.shape)),
         }
     }
 

@@ -59,6 +59,11 @@ levels = [0.5, 0.9, 0.95]     # central credible levels, each strictly between 0
 max_rhat = 1.01
 min_ess = 400
 min_chains = 2
+
+[shape]                       # where the bumps are (docs/model.md, "Bumps, dips and regions")
+# regions = [[70.0, 76.0]]    # intervals [from, to] to ask about: P(a mode inside), the mass inside
+region_mass = 0.05            # report P(region mass > this) for each region
+dip_ratio = 0.9               # a dip is visible when its density is below this share of the lower peak
 "#;
 
 #[cfg(test)]
@@ -73,5 +78,13 @@ mod tests {
                 .unwrap();
         assert_eq!(cfg.components, 10);
         assert_eq!(cfg.levels, vec![0.5, 0.9, 0.95]);
+        assert_eq!(cfg.shape, crate::summary::ShapeSpec::default());
+        // The commented regions line, switched on, parses (integers or floats).
+        let on = TEMPLATE.replace("# regions = [[70.0, 76.0]]", "regions = [[70, 76.5]]");
+        let raw = crate::config::parse_config_str(&on, "template").unwrap();
+        let cfg =
+            crate::config::resolve(&raw, &on, "template", std::path::Path::new("."), None).unwrap();
+        assert_eq!(cfg.shape.regions.len(), 1);
+        assert_eq!(cfg.shape.regions[0].from, 70.0);
     }
 }

@@ -180,6 +180,7 @@ pub fn assess_run(layout: &RunLayout, overrides: &ThresholdOverrides) -> Result<
         levels: None,
         gate: Some(spec),
         columns_per_pass: None,
+        shape: None,
     };
     summarise_stored(&stored, &scalars, &plan)?
         .report

@@ -47,6 +47,7 @@ pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
     }
     let ymax = if ymax > 0.0 { ymax * 1.06 } else { 1.0 };
     let not_converged = b.converged == Some(false);
+    let marks = super::bump_marks::read_bump_marks(&inp.layout.summary_json());
     let title = format!("Posterior density of {}", inp.prep.config.column);
 
     let mut frame = None;
@@ -65,6 +66,12 @@ pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
                 "data (histogram)".into(),
                 LegendMark::Swatch(style::HIST_FILL),
             ));
+            if !marks.is_empty() && kde.is_none() {
+                legend.push((
+                    "bump: location interval, p = P(exists)".into(),
+                    LegendMark::Line(style::ACCENT),
+                ));
+            }
             if let Some((h, _)) = &kde {
                 legend.push((
                     format!("kernel estimate, h = {}", short(*h)),
@@ -162,6 +169,8 @@ pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
                     ShapeStyle::from(style::MEAN_LINE).stroke_width(style::MEAN_WIDTH),
                 ))
                 .map_err(plot_err)?;
+
+            super::bump_marks::draw_bump_marks(&mut chart, &marks, &b.grid, &b.mean, ymax)?;
 
             if inp.observations.len() <= style::RUG_MAX_N {
                 let (_, py) = chart.plotting_area().get_pixel_range();

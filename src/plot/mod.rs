@@ -3,7 +3,9 @@
 //! the density along the grid (grid-diagnostics.svg). Drawn with plotters' SVG backend;
 //! the visual style lives in [`style`].
 
+pub mod bump_marks;
 pub mod canvas;
+pub mod cdf;
 pub mod density;
 pub mod grid_diag;
 pub mod hist;
@@ -34,6 +36,8 @@ pub struct Figures {
     pub ranks: String,
     /// Absent when the run has no diagnostics of the density along the grid.
     pub grid: Option<String>,
+    /// The distribution function's bands (cdf.svg); absent without cdf.csv.
+    pub cdf: Option<String>,
 }
 
 /// Renders every figure.
@@ -47,6 +51,7 @@ pub fn render(
         trace: trace_svg(inp)?,
         ranks: ranks_svg(inp)?,
         grid: grid.map(|g| grid_diagnostics_svg(inp, g)).transpose()?,
+        cdf: cdf::cdf_figure(inp)?,
     })
 }
 
@@ -61,6 +66,9 @@ pub fn write_figures(run: &Path, figs: &Figures) -> Result<Vec<PathBuf>> {
     ];
     if let Some(g) = &figs.grid {
         files.push(("grid-diagnostics.svg", g));
+    }
+    if let Some(c) = &figs.cdf {
+        files.push(("cdf.svg", c));
     }
     let mut out = Vec::new();
     for (name, text) in files {

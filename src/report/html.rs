@@ -351,7 +351,7 @@ pub fn page(p: &PageParts<'_>) -> String {
     figure(
         &mut out,
         &p.figures.density,
-        "Posterior mean density (line) with pointwise equal-tailed credible bands (shaded, widest lightest) over a histogram of the data scaled to density.",
+        &format!("Posterior mean density (line) with pointwise equal-tailed credible bands (shaded, widest lightest) over a histogram of the data scaled to density. {}", super::bumps::MARKS_CAPTION),
     );
     out.push_str("<h2>Run</h2>\n");
     metadata(&mut out, inp);
@@ -362,6 +362,9 @@ pub fn page(p: &PageParts<'_>) -> String {
     }
     out.push_str("<h2>Bands</h2>\n");
     bands_section(&mut out, p);
+    if let Some(c) = &p.figures.cdf {
+        figure(&mut out, c, super::bumps::CDF_CAPTION);
+    }
     out.push_str("<h2>Shape of the distribution</h2>\n");
     super::shape::shape_section(&mut out, p.summary);
     out.push_str("<h2>Traces</h2>\n");

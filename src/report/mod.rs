@@ -2,6 +2,7 @@
 //! figure, the convergence verdict and diagnostics, the bands (as a table and a
 //! downloadable CSV), the trace and rank plots, and the caution that goes with the bands.
 
+pub mod bumps;
 pub mod diagnostics_view;
 pub mod encode;
 pub mod html;

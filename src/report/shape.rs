@@ -64,6 +64,7 @@ pub fn shape_section(out: &mut String, summary: Option<&Value>) {
     let lab = crate::summary::level_label(level);
     out.push_str("<h3>Number of modes</h3>\n");
     count_table(out, "modes", "modes", &s["modes"]);
+    super::bumps::bump_tables(out, s, level);
     let _ = writeln!(
         out,
         "<h3>Mean, sd and quantiles of the distribution</h3>\n<table id=\"functionals\"><thead><tr><th>feature</th>\

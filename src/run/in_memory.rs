@@ -25,11 +25,11 @@ pub fn summarise_in_memory(draws: &RunDraws, plan: &SummaryPlan) -> Summaries {
     let cdf = Bands::new_clipped(&cdf_draws(draws, grid, t), levels, 0.0, 1.0);
     let n = draws.min_len();
     let g = grid.len();
-    let mut features = DrawFeatures::new(&QUANTILE_PROBS);
+    let mut features = DrawFeatures::new(&QUANTILE_PROBS).with_shape(plan.shape);
     for (c, chain) in draws.chains.iter().enumerate() {
         for (d, row) in chain.rows[..n].iter().enumerate() {
             let at = (c * n + d) * g;
-            features.push(row, t, &dens.values[at..at + g]);
+            features.push(row, t, grid, &dens.values[at..at + g]);
         }
     }
     Summaries {

@@ -6,7 +6,8 @@ use serde::Serialize;
 use crate::error::{Error, Result};
 use crate::store::{write_atomic, RunLayout};
 use crate::summary::{
-    distribution, Bands, CountProbability, DrawFeatures, Posterior, MIN_RELATIVE_PROMINENCE,
+    distribution, shape_summary, Bands, CountProbability, DrawFeatures, Posterior, ShapeSummary,
+    MIN_RELATIVE_PROMINENCE,
 };
 
 /// The content of `bands.json`.
@@ -138,6 +139,9 @@ pub struct SummaryFile {
     pub quantiles: Vec<QuantileSummary>,
     pub modes: CountSummary,
     pub occupied_components: CountSummary,
+    /// Where the bumps are: "bump_rule", "bumps", "dips", "regions".
+    #[serde(flatten)]
+    pub shape: ShapeSummary,
 }
 
 /// Probabilities of the distribution's quantiles summarised in summary.json.
@@ -185,6 +189,7 @@ pub fn summary_file(f: &DrawFeatures, bands: &Bands, converged: Option<bool>) ->
                 .into(),
             distribution: distribution(f.occupied.iter().copied()),
         },
+        shape: shape_summary(f, grid, &bands.mean, levels),
     }
 }
 

@@ -22,7 +22,7 @@ use crate::gate::{
 };
 use crate::store::{DrawRow, ScalarDraws, StoredChains};
 use crate::summary::{
-    fold_max_deviation, mixture_cdf_on, Bands, BandsBuilder, DrawDensity, DrawFeatures,
+    fold_max_deviation, mixture_cdf_on, Bands, BandsBuilder, DrawDensity, DrawFeatures, ShapeSpec,
 };
 
 use super::outputs::QUANTILE_PROBS;
@@ -48,6 +48,8 @@ pub struct SummaryPlan<'a> {
     /// Columns evaluated per reading of the tables; `None`: as many as
     /// [`WINDOW_BUDGET_BYTES`] allows, at least [`MIN_COLUMNS`].
     pub columns_per_pass: Option<usize>,
+    /// Regions and thresholds of the shape summaries; `None`: the defaults, no regions.
+    pub shape: Option<&'a ShapeSpec>,
 }
 
 /// Everything summarised from a run; each part is present when the plan asked for it.
@@ -123,7 +125,8 @@ pub fn summarise_stored(
 
     let mut dens = plan.levels.map(|l| CurveBands::new(grid, l, draws));
     let mut cdf = plan.levels.map(|l| CurveBands::new(grid, l, draws));
-    let mut features = plan.levels.map(|_| DrawFeatures::new(&QUANTILE_PROBS));
+    let new_features = || DrawFeatures::new(&QUANTILE_PROBS).with_shape(plan.shape);
+    let mut features = plan.levels.map(|_| new_features());
     let mut gate_grid = plan.gate.map(|_| GridAssessment::new(grid.len()));
     let mut components = Vec::new();
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
@@ -132,12 +135,7 @@ pub fn summarise_stored(
         // density columns then read the same values from that curve. Chains are read in
         // parallel, each with its own features, appended in chain order.
         let whole = pass == 0 && features.is_some();
-        let init = || {
-            (
-                whole.then(|| DrawFeatures::new(&QUANTILE_PROBS)),
-                vec![0.0; grid.len()],
-            )
-        };
+        let init = || (whole.then(new_features), vec![0.0; grid.len()]);
         let fill = |(feat, curve): &mut (Option<DrawFeatures>, Vec<f64>),
                     row: &DrawRow,
                     out: &mut [f64]| {
@@ -146,7 +144,7 @@ pub fn summarise_stored(
                 for (c, &x) in curve.iter_mut().zip(grid) {
                     *c = density.at_on(x, t);
                 }
-                f.push(row, t, curve);
+                f.push(row, t, grid, curve);
             }
             for (o, col) in out.iter_mut().zip(window) {
                 *o = match *col {

@@ -23,13 +23,27 @@ pub const MIN_RELATIVE_PROMINENCE: f64 = 0.01;
 
 /// The number of modes of the curve `f` on an evenly spaced grid.
 pub fn count_modes(f: &[f64]) -> usize {
+    peaks(f).len()
+}
+
+/// One mode of a curve on the grid: the plateau `f[first..=last]` and its prominence.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GridPeak {
+    pub first: usize,
+    pub last: usize,
+    pub prominence: f64,
+}
+
+/// The modes of the curve `f` on an evenly spaced grid, left to right (the rule of the
+/// module comment; [`count_modes`] is their number).
+pub fn peaks(f: &[f64]) -> Vec<GridPeak> {
     let g = f.len();
     let top = f.iter().copied().fold(0.0, f64::max);
+    let mut out = Vec::new();
     if g < 3 || top <= 0.0 {
-        return 0;
+        return out;
     }
     let min_prom = MIN_RELATIVE_PROMINENCE * top;
-    let mut count = 0;
     let mut i = 1;
     while i + 1 < g {
         if f[i] > f[i - 1] {
@@ -38,15 +52,22 @@ pub fn count_modes(f: &[f64]) -> usize {
             while j + 1 < g && f[j + 1] == f[i] {
                 j += 1;
             }
-            if j + 1 < g && f[j + 1] < f[i] && prominence(f, i, j) >= min_prom {
-                count += 1;
+            if j + 1 < g && f[j + 1] < f[i] {
+                let p = prominence(f, i, j);
+                if p >= min_prom {
+                    out.push(GridPeak {
+                        first: i,
+                        last: j,
+                        prominence: p,
+                    });
+                }
             }
             i = j + 1;
         } else {
             i += 1;
         }
     }
-    count
+    out
 }
 
 /// Prominence of the peak occupying f[a..=b] (a plateau at one height).
