@@ -60,6 +60,7 @@ pub struct RawConfig {
     pub grid: Option<GridSection>,
     pub bands: Option<BandsSection>,
     pub gate: Option<GateSection>,
+    pub check: Option<super::check::CheckSection>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

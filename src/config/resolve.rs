@@ -76,6 +76,8 @@ pub struct RunConfig {
     pub max_rhat: f64,
     pub min_ess: f64,
     pub min_chains: usize,
+    /// `[check]`: the model check's thresholds and sizes.
+    pub check: super::check::CheckSettings,
 }
 
 /// Every prior hyperparameter, in the units of the data.
@@ -422,6 +424,7 @@ pub fn resolve(
         max_rhat,
         min_ess,
         min_chains,
+        check: super::check::CheckSettings::resolve(raw.check.as_ref(), text, origin)?,
     })
 }
 
@@ -547,6 +550,7 @@ impl RunConfig {
                 min_ess: Some(self.min_ess),
                 min_chains: Some(self.min_chains as i64),
             }),
+            check: Some(self.check.to_section()),
         }
     }
 

@@ -59,6 +59,13 @@ levels = [0.5, 0.9, 0.95]     # central credible levels, each strictly between 0
 max_rhat = 1.01
 min_ess = 400
 min_chains = 2
+
+[check]                       # model check against the data (docs/outputs.md, "Model check")
+tail_low = 0.01               # posterior predictive p-value below this: flagged
+tail_high = 0.99              # p-value above this: flagged
+replicates = 500              # replicated data sets, one per evenly spaced kept draw
+max_observations = 2000       # larger samples are checked on a random subsample of this size
+loo_draws = 1000              # kept draws used for LOO-PIT
 "#;
 
 #[cfg(test)]

@@ -138,6 +138,9 @@ pub struct SummaryFile {
     pub quantiles: Vec<QuantileSummary>,
     pub modes: CountSummary,
     pub occupied_components: CountSummary,
+    /// The model check's mark (checks.json), when the run has one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model_check: Option<crate::check::CheckMark>,
 }
 
 /// Probabilities of the distribution's quantiles summarised in summary.json.
@@ -185,6 +188,7 @@ pub fn summary_file(f: &DrawFeatures, bands: &Bands, converged: Option<bool>) ->
                 .into(),
             distribution: distribution(f.occupied.iter().copied()),
         },
+        model_check: None,
     }
 }
 
