@@ -136,6 +136,14 @@ impl CheckReport {
         }
     }
 
+    /// Writes RUN/plots/loo-pit.svg.
+    pub fn write_figure(&self, layout: &RunLayout) -> Result<()> {
+        let dir = layout.root.join("plots");
+        std::fs::create_dir_all(&dir).map_err(|e| Error::io(&dir, e))?;
+        let svg = crate::plot::loo_pit::loo_pit_svg(&self.loo_pit)?;
+        write_atomic(&dir.join("loo-pit.svg"), svg.as_bytes())
+    }
+
     pub fn mark(&self) -> CheckMark {
         CheckMark {
             file: CHECKS_FILE.into(),
@@ -379,7 +387,10 @@ fn parallel_map<T: Send>(n: usize, threads: usize, f: impl Fn(usize) -> T + Sync
 /// and never stops the run (an older checks.json is removed so nothing stale remains).
 pub fn check_and_write(layout: &RunLayout, prep: &Prepared) -> Option<CheckReport> {
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
-    match check_run(layout, prep, threads).and_then(|r| r.write(layout).map(|_| r)) {
+    let done = check_run(layout, prep, threads)
+        .and_then(|r| r.write(layout).map(|_| r))
+        .and_then(|r| r.write_figure(layout).map(|_| r));
+    match done {
         Ok(r) => Some(r),
         Err(e) => {
             eprintln!("mixband: warning: the model check was skipped: {e}");

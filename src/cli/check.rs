@@ -32,6 +32,7 @@ pub(super) fn check(run: &Path, json: bool) -> Result<i32> {
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
     let r = check_run(&layout, &prep, threads)?;
     r.write(&layout)?;
+    r.write_figure(&layout)?;
     if json {
         let text = serde_json::to_string_pretty(&r)
             .map_err(|e| Error::internal(format!("cannot encode checks: {e}")))?;

@@ -5,6 +5,7 @@
 pub mod diagnostics_view;
 pub mod encode;
 pub mod html;
+pub mod model_check;
 pub mod shape;
 
 use std::path::{Path, PathBuf};
@@ -33,6 +34,7 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
         })?),
         Err(_) => None,
     };
+    let checks = crate::check::CheckReport::read(run)?;
     let html = page(&PageParts {
         inputs: &inp,
         figures: &figs,
@@ -40,6 +42,7 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
         bands_csv: &bands_csv,
         config_text: &config_text,
         summary: summary.as_ref(),
+        checks: checks.as_ref(),
     });
     let out = run.join("report.html");
     write_atomic(&out, html.as_bytes())?;
