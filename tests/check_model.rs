@@ -174,10 +174,8 @@ fn large_samples_are_checked_on_a_bounded_subsample() {
     // max_observations caps the replicate size and the LOO rows; both are stated.
     let x = lognormal(3000, 0.3, 6);
     let dir = common::scratch_dir("check-cap");
-    let cfg = format!(
-        "[data]\nfile = \"data.csv\"\ncolumn = \"y\"\n[sampler]\nchains = 2\nwarmup = 100\ndraws = 200\nseed = 2\nallocation = \"conditional\"\n[check]\nmax_observations = 500\nreplicates = 50\n"
-    );
-    let (_, r) = fit_and_check(&dir, &x, None, &cfg, 2);
+    let cfg = "[data]\nfile = \"data.csv\"\ncolumn = \"y\"\n[sampler]\nchains = 2\nwarmup = 100\ndraws = 200\nseed = 2\nallocation = \"conditional\"\n[check]\nmax_observations = 500\nreplicates = 50\n";
+    let (_, r) = fit_and_check(&dir, &x, None, cfg, 2);
     assert_eq!((r.replicates.size, r.replicates.observations), (500, 3000));
     assert!(r.replicates.subsampled && r.loo_pit.subsampled);
     assert_eq!((r.loo_pit.rows_used, r.loo_pit.rows_total), (500, 3000));

@@ -247,7 +247,7 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
         .pareto_k
         .iter()
         .zip(&counts)
-        .filter(|(k, _)| !(**k <= HIGH_K))
+        .filter(|(k, _)| k.is_nan() || **k > HIGH_K)
         .map(|(_, c)| c)
         .sum();
     let z = ecdf_band::eval_points(BAND_INTERVALS);
