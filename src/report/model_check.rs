@@ -67,10 +67,10 @@ pub fn model_check_section(out: &mut String, checks: Option<&CheckReport>) {
         };
         let _ = write!(
             out,
-            "<tr><td title=\"{}\">{}</td><td>{}</td><td>{}</td><td>{} to {}</td><td{bad}>{:.3}</td><td>{:.3}</td><td{bad}>{}</td></tr>",
+            "<tr><td title=\"{}\">{}</td><td>{}</td><td>{}</td><td style=\"white-space: nowrap\">{} to {}</td><td{bad}>{:.3}</td><td>{:.3}</td><td{bad}>{}</td></tr>",
+            html_escape(&s.name),
             html_escape(&describe(&s.name)),
-            html_escape(&describe(&s.name)),
-            sig4(s.observed),
+            if s.name == "kde_modes" { format!("{}", s.observed) } else { sig4(s.observed) },
             sig4(s.replicated.median),
             sig4(s.replicated.lower_95),
             sig4(s.replicated.upper_95),
