@@ -274,3 +274,54 @@ fn pvalues_are_calibrated_on_prior_predictive_data_long() {
     assert!((mean - 0.5).abs() < 0.08);
     assert!(tails <= 0.03);
 }
+
+#[test]
+fn sample_writes_the_check_marks_summary_and_report_and_check_reproduces_it() {
+    // `sample` runs the check: checks.json, plots/loo-pit.svg, the mark in summary.json and
+    // the report's section; `mixband check RUN` recomputes the same file byte for byte.
+    let dir = common::scratch_dir("check-cli");
+    let x = lognormal(150, 0.8, 12);
+    let csv: String = std::iter::once("y\n".to_string())
+        .chain(x.iter().map(|v| format!("{v}\n")))
+        .collect();
+    std::fs::write(dir.join("data.csv"), csv).unwrap();
+    // One normal on skewed data, so the verdict is a misfit with advice.
+    let cfg = format!("[data]\nfile = \"data.csv\"\ncolumn = \"y\"\n[model]\nkernel = \"location\"\ncomponents = 1\n{SHORT}[check]\nreplicates = 100\n");
+    std::fs::write(dir.join("run.toml"), cfg).unwrap();
+    let run = dir.join("run");
+    let args = |v: &[&str]| {
+        v.iter()
+            .map(Into::into)
+            .collect::<Vec<std::ffi::OsString>>()
+    };
+    let code = mixband::cli::main_with_args(args(&[
+        "mixband",
+        "sample",
+        dir.join("run.toml").to_str().unwrap(),
+        "--out",
+        run.to_str().unwrap(),
+        "--quiet",
+    ]));
+    assert!(code == 0 || code == 3, "exit {code}");
+    let first = std::fs::read(run.join("checks.json")).unwrap();
+    let r: CheckReport = serde_json::from_slice(&first).unwrap();
+    assert!(r.verdict.misfit && !r.verdict.advice.is_empty());
+    let summary: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(run.join("summary.json")).unwrap()).unwrap();
+    assert_eq!(
+        summary["model_check"]["misfit"],
+        serde_json::Value::Bool(true)
+    );
+    assert_eq!(summary["model_check"]["file"], "checks.json");
+    let html = std::fs::read_to_string(run.join("report.html")).unwrap();
+    assert!(html.contains("id=\"model-check\"") && html.contains("MISFIT"));
+    assert!(html.contains("LOO-PIT: ECDF of the PIT values"));
+    assert!(run.join("plots/loo-pit.svg").exists());
+    let config = std::fs::read_to_string(run.join("config.toml")).unwrap();
+    assert!(config.contains("[check]") && config.contains("replicates = 100"));
+    assert_eq!(
+        mixband::cli::main_with_args(args(&["mixband", "check", run.to_str().unwrap()])),
+        0
+    );
+    assert_eq!(std::fs::read(run.join("checks.json")).unwrap(), first);
+}

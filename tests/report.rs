@@ -79,9 +79,9 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
         "CSS must not load anything"
     );
 
-    // The density, trace, rank and grid figures are inline.
+    // The density, trace, rank, grid and LOO-PIT (model check) figures are inline.
     let svgs = doc.descendants().filter(|n| n.has_tag_name("svg")).count();
-    assert_eq!(svgs, 4);
+    assert_eq!(svgs, 5);
 
     // The download is RUN/bands.csv byte for byte.
     let link = doc

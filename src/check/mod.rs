@@ -204,12 +204,20 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
     });
     drop(draws);
     let observed = stats::statistics(&obs.sorted, h);
+    // A statistic that overflows (a replicate far in a heavy tail mapped back by exp, say)
+    // is compared over the replicates where it is finite, and left out when the data's own
+    // value or every replicate's is not, so no NaN or infinity reaches checks.json.
     let statistics: Vec<StatCheck> = stats::names()
         .iter()
         .enumerate()
-        .map(|(i, name)| {
-            let rep: Vec<f64> = rep_stats.iter().map(|s| s[i]).collect();
-            pvalue::compare(name, observed[i], &rep, set.tail_low, set.tail_high)
+        .filter_map(|(i, name)| {
+            let rep: Vec<f64> = rep_stats
+                .iter()
+                .map(|s| s[i])
+                .filter(|v| v.is_finite())
+                .collect();
+            (observed[i].is_finite() && !rep.is_empty())
+                .then(|| pvalue::compare(name, observed[i], &rep, set.tail_low, set.tail_high))
         })
         .collect();
 

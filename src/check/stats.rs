@@ -55,15 +55,20 @@ pub fn statistics(sorted: &[f64], h: f64) -> Vec<f64> {
         .map(|&p| quantile_sorted(sorted, p))
         .collect();
     let mean = sorted.iter().sum::<f64>() / n;
+    // Moments of the deviations divided by the largest one, so that data near 1e±150 (which
+    // the loader accepts) neither overflow nor underflow; skewness and kurtosis are
+    // scale-free and the sd is scaled back.
+    let big = sorted.iter().map(|v| (v - mean).abs()).fold(0.0, f64::max);
+    let unit = if big > 0.0 { big } else { 1.0 };
     let (mut m2, mut m3, mut m4) = (0.0, 0.0, 0.0);
     for &v in sorted {
-        let d = v - mean;
+        let d = (v - mean) / unit;
         let d2 = d * d;
         m2 += d2;
         m3 += d2 * d;
         m4 += d2 * d2;
     }
-    let sd = (m2 / (n - 1.0)).sqrt();
+    let sd = unit * (m2 / (n - 1.0)).sqrt();
     let (m2, m3, m4) = (m2 / n, m3 / n, m4 / n);
     // A constant replicate (possible only for degenerate draws) has no shape: 0 and 3, the
     // values of a symmetric, normal-tailed sample, so it never counts as extreme.
@@ -126,5 +131,20 @@ mod tests {
         let one: Vec<f64> = (0..20).map(|i| i as f64 * 0.01).collect();
         assert_eq!(kde_modes(&one, 1.0), 1);
         assert_eq!(names().len(), statistics(&one, 1.0).len());
+    }
+
+    #[test]
+    fn shape_is_scale_free_and_finite_at_extreme_scales() {
+        // Skewness and kurtosis do not change under x ↦ a + b·x (b > 0), and the sd scales
+        // by b (definitions); 1e150 would overflow m2^1.5 without the rescaling.
+        let x = [1.0, 2.0, 3.0, 10.0];
+        let base = statistics(&x, 1.0);
+        for (a, b) in [(1e150, 1e140), (0.0, 1e-150)] {
+            let y: Vec<f64> = x.iter().map(|v| a + b * v).collect();
+            let s = statistics(&y, b);
+            assert!(s.iter().all(|v| v.is_finite()), "{s:?}");
+            assert!((s[8] - base[8]).abs() < 1e-4 && (s[9] - base[9]).abs() < 1e-4);
+            assert!((s[7] / b - base[7]).abs() < 1e-4 * base[7]);
+        }
     }
 }

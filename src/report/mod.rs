@@ -34,7 +34,10 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
         })?),
         Err(_) => None,
     };
-    let checks = crate::check::CheckReport::read(run)?;
+    let checks = crate::check::CheckReport::read(run).unwrap_or_else(|e| {
+        eprintln!("mixband: warning: the report leaves out the model check: {e}");
+        None
+    });
     let html = page(&PageParts {
         inputs: &inp,
         figures: &figs,
