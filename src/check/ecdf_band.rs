@@ -19,6 +19,8 @@
 //! conditional binomials), which has the same distribution as sorting N uniforms but costs
 //! O(K), so the bands stay cheap for any N.
 
+use std::collections::HashMap;
+
 use rand::Rng;
 use rand_distr::{Binomial as BinomialDraw, Distribution};
 use serde::{Deserialize, Serialize};
@@ -72,15 +74,29 @@ pub fn binom_quantile(n: u64, p: f64, q: f64) -> u64 {
 /// γ of counts `c` (c_k = N·F̂(z_k)) against Binomial(n, z_k); points at 0 and 1 carry no
 /// information and are skipped.
 pub fn gamma_of(counts: &[u64], n: u64, z: &[f64]) -> f64 {
+    gamma_cached(counts, n, z, &mut HashMap::new())
+}
+
+/// [`gamma_of`] with the tail probabilities of each (point, count) kept in `cache`: the
+/// simulated counts at a point repeat a few dozen values, so the band's simulation computes
+/// each tail once (the values are the same numbers either way).
+fn gamma_cached(counts: &[u64], n: u64, z: &[f64], cache: &mut HashMap<(usize, u64), f64>) -> f64 {
     let mut tail: f64 = 1.0;
-    for (&c, &p) in counts.iter().zip(z) {
+    for (k, (&c, &p)) in counts.iter().zip(z).enumerate() {
         if p <= 0.0 || p >= 1.0 {
             continue;
         }
-        let Ok(d) = Binomial::new(p, n) else { continue };
-        let below = d.cdf(c);
-        let above = if c == 0 { 1.0 } else { d.sf(c - 1) };
-        tail = tail.min(below).min(above);
+        let t = *cache
+            .entry((k, c))
+            .or_insert_with(|| match Binomial::new(p, n) {
+                Ok(d) => {
+                    let below = d.cdf(c);
+                    let above = if c == 0 { 1.0 } else { d.sf(c - 1) };
+                    below.min(above)
+                }
+                Err(_) => 1.0,
+            });
+        tail = tail.min(t);
     }
     (2.0 * tail).min(1.0)
 }
@@ -94,6 +110,7 @@ pub fn simulated_band<R: Rng>(
     rng: &mut R,
 ) -> EcdfBand {
     let nn = n as u64;
+    let mut cache = HashMap::new();
     let mut gammas: Vec<f64> = (0..sims)
         .map(|_| {
             let mut left = nn;
@@ -115,7 +132,7 @@ pub fn simulated_band<R: Rng>(
                     cum
                 })
                 .collect();
-            gamma_of(&counts, nn, z)
+            gamma_cached(&counts, nn, z, &mut cache)
         })
         .collect();
     gammas.sort_by(f64::total_cmp);
