@@ -34,13 +34,11 @@ pub fn names() -> Vec<String> {
 /// What each statistic is, for the report and `mixband check`.
 pub fn describe(name: &str) -> String {
     match name {
-        "sd" => "standard deviation (divisor n − 1)".into(),
-        "skewness" => "skewness m3 / m2^1.5 (moment form)".into(),
-        "kurtosis" => "kurtosis m4 / m2² (3 for a normal; not the excess)".into(),
-        "max_gap" => "largest gap between neighbouring sorted values".into(),
-        "kde_modes" => {
-            "modes of a Gaussian kernel estimate at the observed data's Silverman bandwidth".into()
-        }
+        "sd" => "standard deviation".into(),
+        "skewness" => "skewness".into(),
+        "kurtosis" => "kurtosis (normal: 3)".into(),
+        "max_gap" => "largest gap between sorted values".into(),
+        "kde_modes" => "modes of the kernel estimate".into(),
         q if q.starts_with('q') => format!("{}% quantile", q[1..].trim_start_matches('0')),
         other => other.into(),
     }

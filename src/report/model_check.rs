@@ -26,7 +26,7 @@ pub fn model_check_section(out: &mut String, checks: Option<&CheckReport>) {
         } else {
             "NO MISFIT FOUND"
         },
-        html_escape(&v.summary),
+        html_escape(v.summary.trim_start_matches("Misfit: ")),
         if v.advice.is_empty() {
             String::new()
         } else {
@@ -58,7 +58,7 @@ pub fn model_check_section(out: &mut String, checks: Option<&CheckReport>) {
         r.tail_high,
         ((1.0 - r.tail_high) * 1e12).round() / 1e12
     );
-    out.push_str("<table id=\"checks\"><thead><tr><th>statistic</th><th>data</th><th>replicates: median</th><th>95% interval</th><th>p</th><th>± MCSE</th><th></th></tr></thead><tbody>");
+    out.push_str("<table id=\"checks\"><thead><tr><th>statistic</th><th>data</th><th>replicates: median</th><th>95% interval</th><th>p</th><th>± MCSE</th><th>tail</th></tr></thead><tbody>");
     for s in &r.statistics {
         let bad = if s.tail.is_some() {
             " class=\"bad\""
@@ -77,8 +77,8 @@ pub fn model_check_section(out: &mut String, checks: Option<&CheckReport>) {
             s.p_value,
             s.p_value_mcse,
             match s.tail {
-                Some(Tail::ObservedHigh) => "data above the replicates",
-                Some(Tail::ObservedLow) => "data below the replicates",
+                Some(Tail::ObservedHigh) => "data high",
+                Some(Tail::ObservedLow) => "data low",
                 None => "",
             }
         );
