@@ -24,8 +24,6 @@ use mixband::sampler::allocate::{loglik, ComponentTable};
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::{initial_state, sweep};
 use mixband::summary::linspace;
-use rand::SeedableRng;
-use rand_chacha::ChaCha8Rng;
 
 #[path = "support/densities.rs"]
 mod densities;

@@ -17,10 +17,12 @@
 //! - [`diagnostics`]: R-hat, effective sample size and Monte Carlo error;
 //! - [`compare`]: PSIS-LOO and WAIC comparison of runs on the same data;
 //! - [`gate`]: the convergence gate on a run's label-invariant quantities;
+//! - [`check`]: the model checked against the data (posterior predictive checks, LOO-PIT);
 //! - [`run`]: the whole job; [`cli`]: the thin command line over it;
 //! - [`bench`]: synthetic speed and memory workloads (`mixband bench`).
 
 pub mod bench;
+pub mod check;
 pub mod cli;
 pub mod compare;
 pub mod config;

@@ -79,9 +79,9 @@ fn report_is_self_contained_well_formed_and_carries_the_bands() {
         "CSS must not load anything"
     );
 
-    // The density, CDF, trace, rank and grid figures are inline.
+    // The density, CDF, trace, rank, grid and LOO-PIT (model check) figures are inline.
     let svgs = doc.descendants().filter(|n| n.has_tag_name("svg")).count();
-    assert_eq!(svgs, 5);
+    assert_eq!(svgs, 6);
 
     // The bump table has one row per bump of summary.json.
     let summary: serde_json::Value =

@@ -24,6 +24,9 @@ pub(super) fn summarise(layout: &RunLayout, prep: &Prepared) -> Result<Diagnosti
         .report
         .ok_or_else(|| Error::internal("the gate was not assessed"))?;
     report.write(layout)?;
+    if let Some(r) = crate::check::check_and_write(layout, prep) {
+        println!("mixband: model check: {}", r.verdict.summary);
+    }
     write_all(layout, s.bands, s.cdf, s.features, Some(report.passed))?;
     Ok(report)
 }
@@ -67,7 +70,8 @@ fn write_all(
     let missing = || Error::internal("the bands were not computed");
     let bands = bands.ok_or_else(missing)?;
     write_bands(layout, &bands, converged)?;
-    let file = summary_file(&features.ok_or_else(missing)?, &bands, converged);
+    let mut file = summary_file(&features.ok_or_else(missing)?, &bands, converged);
+    file.model_check = crate::check::mark_of(layout);
     write_summaries(layout, &cdf.ok_or_else(missing)?, &file)
 }
 

@@ -3,6 +3,7 @@
 
 mod bands;
 mod bench;
+mod check;
 mod compare;
 mod demo;
 mod diagnose;
@@ -167,6 +168,14 @@ pub enum Command {
         #[arg(long)]
         min_chains: Option<usize>,
     },
+    /// Check the model against the data: posterior predictive p-values, LOO-PIT and a
+    /// verdict; writes RUN/checks.json (never fails the run).
+    Check {
+        run: PathBuf,
+        /// Print the result as JSON (the format of RUN/checks.json).
+        #[arg(long)]
+        json: bool,
+    },
     /// Print a commented starter config listing every key.
     Template,
     /// Time the sampler on synthetic workloads (ns per pair, sweeps/s, memory, ESS/s).
@@ -197,6 +206,7 @@ pub fn run(cli: Cli) -> Result<i32> {
         Command::Plot { run, with_kde } => plot::plot(&run, with_kde),
         Command::Report { run, with_kde } => report::report(&run, with_kde),
         Command::Compare { runs, json } => compare::compare(&runs, json),
+        Command::Check { run, json } => check::check(&run, json),
         Command::Bench(a) => bench::bench(&a),
         Command::Diagnose {
             run,

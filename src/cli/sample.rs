@@ -109,6 +109,10 @@ pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) 
         if let Some(d) = v.get_mut("data").and_then(|d| d.as_object_mut()) {
             d.remove("file");
         }
+        // [check] changes no draw (and runs from before it have none).
+        if let Some(o) = v.as_object_mut() {
+            o.remove("check");
+        }
         v
     };
     let now = serde_json::to_value(prep.config.to_raw())

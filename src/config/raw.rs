@@ -61,6 +61,7 @@ pub struct RawConfig {
     pub bands: Option<BandsSection>,
     pub gate: Option<GateSection>,
     pub shape: Option<super::shape::ShapeSection>,
+    pub check: Option<super::check::CheckSection>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -78,6 +78,8 @@ pub struct RunConfig {
     pub min_chains: usize,
     /// `[shape]`: regions of interest and the thresholds of the shape summaries.
     pub shape: crate::summary::ShapeSpec,
+    /// `[check]`: the model check's thresholds and sizes.
+    pub check: super::check::CheckSettings,
 }
 
 /// Every prior hyperparameter, in the units of the data.
@@ -427,6 +429,7 @@ pub fn resolve(
         min_ess,
         min_chains,
         shape,
+        check: super::check::CheckSettings::resolve(raw.check.as_ref(), text, origin)?,
     })
 }
 
@@ -553,6 +556,7 @@ impl RunConfig {
                 min_chains: Some(self.min_chains as i64),
             }),
             shape: Some(super::shape::shape_section(&self.shape)),
+            check: Some(self.check.to_section()),
         }
     }
 

@@ -64,6 +64,13 @@ min_chains = 2
 # regions = [[70.0, 76.0]]    # intervals [from, to] to ask about: P(a mode inside), the mass inside
 region_mass = 0.05            # report P(region mass > this) for each region
 dip_ratio = 0.9               # a dip is visible when its density is below this share of the lower peak
+
+[check]                       # model check against the data (docs/outputs.md, "Model check")
+tail_low = 0.01               # posterior predictive p-value below this: flagged
+tail_high = 0.99              # p-value above this: flagged
+replicates = 500              # replicated data sets, one per evenly spaced kept draw
+max_observations = 2000       # larger samples are checked on a random subsample of this size
+loo_draws = 1000              # kept draws used for LOO-PIT
 "#;
 
 #[cfg(test)]

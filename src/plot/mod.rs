@@ -11,6 +11,7 @@ pub mod grid_diag;
 pub mod hist;
 pub mod inputs;
 pub mod kde;
+pub mod loo_pit;
 pub mod quantities;
 pub mod ranks;
 pub mod style;

@@ -21,6 +21,8 @@ pub struct PageParts<'a> {
     pub config_text: &'a str,
     /// RUN/summary.json, parsed, when the run has one.
     pub summary: Option<&'a serde_json::Value>,
+    /// RUN/checks.json, when the run has one.
+    pub checks: Option<&'a crate::check::CheckReport>,
 }
 
 /// The verdict the banner shows.
@@ -367,6 +369,7 @@ pub fn page(p: &PageParts<'_>) -> String {
     }
     out.push_str("<h2>Shape of the distribution</h2>\n");
     super::shape::shape_section(&mut out, p.summary);
+    super::model_check::model_check_section(&mut out, p.checks);
     out.push_str("<h2>Traces</h2>\n");
     figure(&mut out, &p.figures.trace, "Per-chain traces of label-invariant quantities (long chains are thinned evenly for drawing).");
     out.push_str("<h2>Rank plots</h2>\n");

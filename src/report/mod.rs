@@ -6,6 +6,7 @@ pub mod bumps;
 pub mod diagnostics_view;
 pub mod encode;
 pub mod html;
+pub mod model_check;
 pub mod shape;
 
 use std::path::{Path, PathBuf};
@@ -34,6 +35,10 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
         })?),
         Err(_) => None,
     };
+    let checks = crate::check::CheckReport::read(run).unwrap_or_else(|e| {
+        eprintln!("mixband: warning: the report leaves out the model check: {e}");
+        None
+    });
     let html = page(&PageParts {
         inputs: &inp,
         figures: &figs,
@@ -41,6 +46,7 @@ pub fn write_report(run: &Path, opts: DensityOptions) -> Result<PathBuf> {
         bands_csv: &bands_csv,
         config_text: &config_text,
         summary: summary.as_ref(),
+        checks: checks.as_ref(),
     });
     let out = run.join("report.html");
     write_atomic(&out, html.as_bytes())?;

@@ -142,6 +142,9 @@ pub struct SummaryFile {
     /// Where the bumps are: "bump_rule", "bumps", "dips", "regions".
     #[serde(flatten)]
     pub shape: ShapeSummary,
+    /// The model check's mark (checks.json), when the run has one.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub model_check: Option<crate::check::CheckMark>,
 }
 
 /// Probabilities of the distribution's quantiles summarised in summary.json.
@@ -190,6 +193,7 @@ pub fn summary_file(f: &DrawFeatures, bands: &Bands, converged: Option<bool>) ->
             distribution: distribution(f.occupied.iter().copied()),
         },
         shape: shape_summary(f, grid, &bands.mean, levels),
+        model_check: None,
     }
 }
 

@@ -24,6 +24,15 @@ const COLLAPSED_STREAM: u64 = u64::MAX - 2;
 const SPLIT_MERGE_STREAM: u64 = u64::MAX - 3;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
+/// Sweep index of the model check's streams (`src/check/`), under chain 0, which no chain
+/// uses (chains count from 1): replicated data sets, subsamples, the band simulation.
+const CHECK_SWEEP: u64 = u64::MAX - 1;
+
+/// Generator for the model check of a run with `seed`; `purpose` separates its uses (a
+/// replicate's index, or a reserved constant in `src/check/`).
+pub fn check_rng(seed: u64, purpose: u64) -> ChaCha8Rng {
+    StreamKey::new(seed, 0).rng(CHECK_SWEEP, purpose)
+}
 
 /// Identifies one chain's family of streams.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
