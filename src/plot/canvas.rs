@@ -160,6 +160,29 @@ pub fn font(size: u32, colour: RGBColor) -> TextStyle<'static> {
     (style::FONT, size).into_font().color(&colour)
 }
 
+/// The house axes of a chart: no vertical grid lines, light horizontal guides, the axis
+/// line, tick labels at `tick_size` and axis titles in the house fonts. Chainable, so a
+/// figure adds only its own ticks, formatters and titles.
+pub trait HouseMesh {
+    fn house(&mut self, tick_size: u32) -> &mut Self;
+}
+
+impl<
+        X: plotters::coord::ranged1d::Ranged,
+        Y: plotters::coord::ranged1d::Ranged,
+        DB: DrawingBackend,
+    > HouseMesh for plotters::chart::MeshStyle<'_, '_, X, Y, DB>
+{
+    fn house(&mut self, tick_size: u32) -> &mut Self {
+        self.disable_x_mesh()
+            .bold_line_style(style::GUIDE)
+            .light_line_style(TRANSPARENT)
+            .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+            .label_style(font(tick_size, style::INK_SOFT))
+            .axis_desc_style(font(style::LABEL_SIZE, style::INK))
+    }
+}
+
 /// A bold font of the house style.
 pub fn bold(size: u32, colour: RGBColor) -> TextStyle<'static> {
     (style::FONT, size, FontStyle::Bold)

@@ -7,7 +7,9 @@ use std::path::Path;
 
 use plotters::prelude::*;
 
-use super::canvas::{font, frame_metadata, plot_err, svg_document, tick_formatter, Area, Frame};
+use super::canvas::{
+    frame_metadata, plot_err, svg_document, tick_formatter, Area, Frame, HouseMesh,
+};
 use super::density::{draw_heading, draw_legend, LegendMark};
 use super::inputs::RunInputs;
 use super::style;
@@ -112,16 +114,11 @@ pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
             .map_err(plot_err)?;
         chart
             .configure_mesh()
-            .disable_x_mesh()
-            .bold_line_style(style::GUIDE)
-            .light_line_style(TRANSPARENT)
-            .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+            .house(style::TICK_SIZE)
             .x_labels(9)
             .y_labels(6)
             .x_label_formatter(&tick_formatter(x1 - x0, 9))
             .y_label_formatter(&tick_formatter(1.0, 6))
-            .label_style(font(style::TICK_SIZE, style::INK_SOFT))
-            .axis_desc_style(font(style::LABEL_SIZE, style::INK))
             .x_desc(inp.value_label())
             .y_desc("P(X ≤ x)")
             .draw()

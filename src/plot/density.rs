@@ -7,7 +7,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::canvas::{
-    bold, font, frame_metadata, plot_err, svg_document, tick_formatter, Area, Frame,
+    bold, font, frame_metadata, plot_err, svg_document, tick_formatter, Area, Frame, HouseMesh,
 };
 use super::hist::Histogram;
 use super::inputs::RunInputs;
@@ -88,16 +88,11 @@ pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
                 .map_err(plot_err)?;
             chart
                 .configure_mesh()
-                .disable_x_mesh()
-                .bold_line_style(style::GUIDE)
-                .light_line_style(TRANSPARENT)
-                .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+                .house(style::TICK_SIZE)
                 .x_labels(9)
                 .y_labels(6)
                 .x_label_formatter(&tick_formatter(x1 - x0, 9))
                 .y_label_formatter(&tick_formatter(ymax, 6))
-                .label_style(font(style::TICK_SIZE, style::INK_SOFT))
-                .axis_desc_style(font(style::LABEL_SIZE, style::INK))
                 .x_desc(inp.value_label())
                 .y_desc(inp.density_label())
                 .draw()

@@ -4,7 +4,7 @@
 
 use plotters::prelude::*;
 
-use super::canvas::{bold, font, plot_err, svg_document, tick_formatter, Area};
+use super::canvas::{bold, plot_err, svg_document, tick_formatter, Area, HouseMesh};
 use super::density::{draw_heading, draw_legend, top_left, LegendMark};
 use super::inputs::RunInputs;
 use super::style;
@@ -125,16 +125,11 @@ fn panel(
     let fx = tick_formatter(x1 - x0, 9);
     let fy = tick_formatter(yr.1 - yr.0, 5);
     let mut mesh = chart.configure_mesh();
-    mesh.disable_x_mesh()
-        .bold_line_style(style::GUIDE)
-        .light_line_style(TRANSPARENT)
-        .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+    mesh.house(style::TICK_SIZE - 1)
         .x_labels(9)
         .y_labels(5)
         .x_label_formatter(&fx)
-        .y_label_formatter(&fy)
-        .label_style(font(style::TICK_SIZE - 1, style::INK_SOFT))
-        .axis_desc_style(font(style::LABEL_SIZE, style::INK));
+        .y_label_formatter(&fy);
     if bottom {
         mesh.x_desc(inp.value_label());
     }

@@ -6,7 +6,7 @@
 
 use plotters::prelude::*;
 
-use super::canvas::{bold, font, plot_err, svg_document, tick_formatter, Area};
+use super::canvas::{bold, font, plot_err, svg_document, tick_formatter, Area, HouseMesh};
 use super::style;
 use crate::check::PitReport;
 use crate::error::Result;
@@ -72,16 +72,11 @@ pub fn loo_pit_svg(l: &PitReport) -> Result<String> {
         let fx = tick_formatter(1.0, 6);
         chart
             .configure_mesh()
-            .disable_x_mesh()
-            .bold_line_style(style::GUIDE)
-            .light_line_style(TRANSPARENT)
-            .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+            .house(style::TICK_SIZE - 1)
             .x_labels(6)
             .y_labels(6)
             .x_label_formatter(&fx)
             .y_label_formatter(&fy)
-            .label_style(font(style::TICK_SIZE - 1, style::INK_SOFT))
-            .axis_desc_style(font(style::LABEL_SIZE, style::INK))
             .x_desc("PIT value z")
             .y_desc("ECDF(z) − z")
             .draw()

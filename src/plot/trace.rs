@@ -3,7 +3,9 @@
 
 use plotters::prelude::*;
 
-use super::canvas::{bold, font, padded_range, plot_err, svg_document, tick_formatter, Area};
+use super::canvas::{
+    bold, font, padded_range, plot_err, svg_document, tick_formatter, Area, HouseMesh,
+};
 use super::density::{draw_heading, draw_legend, LegendMark};
 use super::inputs::RunInputs;
 use super::quantities::{scalar_quantities, Quantity};
@@ -98,16 +100,11 @@ fn draw_panel(area: &Area<'_>, q: &Quantity, bottom: bool) -> Result<()> {
         .map_err(plot_err)?;
     let fy = tick_formatter(y1 - y0, 4);
     let mut mesh = chart.configure_mesh();
-    mesh.disable_x_mesh()
-        .bold_line_style(style::GUIDE)
-        .light_line_style(TRANSPARENT)
-        .axis_style(ShapeStyle::from(style::INK).stroke_width(style::AXIS_WIDTH))
+    mesh.house(style::TICK_SIZE - 1)
         .x_labels(8)
         .y_labels(4)
         .x_label_formatter(&|v| format!("{}", v.round() as i64))
-        .y_label_formatter(&fy)
-        .label_style(font(style::TICK_SIZE - 1, style::INK_SOFT))
-        .axis_desc_style(font(style::LABEL_SIZE, style::INK));
+        .y_label_formatter(&fy);
     if bottom {
         mesh.x_desc("kept draw");
     }
