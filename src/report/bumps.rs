@@ -110,17 +110,19 @@ pub fn bump_tables(out: &mut String, s: &Value, level: f64) {
         let _ = write!(
             out,
             "<h3>Regions</h3>\n<table id=\"regions\"><thead><tr><th>region</th><th>probability of a mode inside</th>\
-             <th>mass, median ({lab}% interval)</th><th>probability the mass exceeds</th></tr></thead><tbody>"
+             <th>mass, median ({lab}% interval)</th><th>probability the mass exceeds <code>[shape] region_mass</code></th></tr></thead><tbody>"
         );
         for r in regions {
             let _ = write!(
                 out,
-                "<tr><td>{} to {}</td><td>{}</td><td>{}</td><td>{}: {}</td></tr>",
+                "<tr><td>{} to {}</td><td>{}</td><td>{}</td><td>P(mass &gt; {}) = {}</td></tr>",
                 num(&r["from"]),
                 num(&r["to"]),
                 num(&r["probability_mode"]),
                 spread(&r["mass"], level),
-                num(&r["mass_above"]),
+                r["mass_above"]
+                    .as_f64()
+                    .map_or_else(|| num(&r["mass_above"]), |v| format!("{v}")),
                 num(&r["probability_mass_above"])
             );
         }
