@@ -11,6 +11,9 @@ pub(super) struct AdviceContext {
     pub min_chains: usize,
 }
 
+/// Beyond this many times the run's length, an extension is called impractical.
+const IMPRACTICAL: usize = 10;
+
 /// Extra draws per chain that should lift `lowest` ESS to `min_ess`, assuming ESS grows in
 /// proportion to the draws (common practice, no source), with a 20% margin, rounded up to 100.
 fn extra_draws(draws: usize, lowest: f64, min_ess: f64) -> Option<usize> {
@@ -47,6 +50,15 @@ pub(super) fn advice(failures: &[Failure], c: AdviceContext) -> Vec<String> {
             .filter_map(|f| f.value)
             .fold(f64::INFINITY, f64::min);
         let how = match extra_draws(c.draws_per_chain, lowest, c.min_ess) {
+            Some(n) if n > IMPRACTICAL * c.draws_per_chain => format!(
+                "; about {n} more per chain (`mixband extend <run> --draws {n}`) would be needed to lift the \
+                 lowest ESS ({lowest:.0}) above {}, {} times this run's length, which is unlikely to be \
+                 practical: the chains barely move (the usual cause is a large sample: docs/model.md, \"Large \
+                 samples mix badly\"; figures in docs/performance.md, \"Time to a converged answer\"), so \
+                 report nothing from this run",
+                c.min_ess,
+                n / c.draws_per_chain.max(1)
+            ),
             Some(n) => format!(
                 "; about {n} more per chain (`mixband extend <run> --draws {n}`) should lift the lowest ESS \
                  ({lowest:.0}) above {}",
@@ -91,5 +103,36 @@ mod tests {
         assert_eq!(extra_draws(1000, 200.0, 400.0), Some(1400));
         assert_eq!(extra_draws(1000, 390.0, 400.0), Some(300));
         assert_eq!(extra_draws(0, 200.0, 400.0), None);
+    }
+
+    fn ess_failure(value: f64) -> Failure {
+        Failure {
+            kind: FailureKind::EssBulk,
+            quantity: Some("occupied".into()),
+            value: Some(value),
+            sentence: String::new(),
+        }
+    }
+
+    fn context() -> AdviceContext {
+        AdviceContext {
+            chains: 4,
+            draws_per_chain: 3000,
+            min_ess: 400.0,
+            min_chains: 2,
+        }
+    }
+
+    #[test]
+    fn a_hopeless_extension_is_called_impractical() {
+        // ESS 8 in 3000 draws a chain (a large sample on the conditional sweep) would need
+        // about 177 000 more: said so, and the run is not to be reported.
+        let a = advice(&[ess_failure(8.0)], context()).join(" ");
+        assert!(a.contains("unlikely to be practical"), "{a}");
+        assert!(a.contains("report nothing from this run"), "{a}");
+        // ESS 300 needs about 1800 more: the ordinary advice.
+        let b = advice(&[ess_failure(300.0)], context()).join(" ");
+        assert!(b.contains("should lift the lowest ESS (300)"), "{b}");
+        assert!(!b.contains("unlikely"), "{b}");
     }
 }
