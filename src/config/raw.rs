@@ -77,6 +77,10 @@ pub struct DataSection {
     /// Header name of a column of integer frequency weights (binned or tabulated data).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub weights: Option<String>,
+    /// The resolution the values were recorded at: each value x stands for the cell
+    /// [x − r/2, x + r/2) (interval-censored likelihood, see src/sampler/censored.rs).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub resolution: Option<f64>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

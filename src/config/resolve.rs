@@ -56,6 +56,8 @@ pub struct RunConfig {
     pub transform: crate::data::Transform,
     /// `[data] weights`: column of integer frequency weights, if any.
     pub freq_weights: Option<String>,
+    /// `[data] resolution`: each value stands for [x − r/2, x + r/2), in data units.
+    pub resolution: Option<f64>,
     pub kernel: Kernel,
     pub weights: WeightsKind,
     pub components: usize,
@@ -216,6 +218,16 @@ pub fn resolve(
             ));
         }
     }
+    let resolution = match data.resolution {
+        Some(r) if !(r.is_finite() && r > 0.0) => {
+            return Err(ck.fail(
+                "data",
+                "resolution",
+                format!("must be a positive finite number, got {r}"),
+            ))
+        }
+        r => r,
+    };
     let data_file = if Path::new(&file).is_absolute() {
         PathBuf::from(&file)
     } else {
@@ -409,6 +421,7 @@ pub fn resolve(
         missing: data.missing.unwrap_or(MissingPolicy::Error),
         transform: data.transform.unwrap_or_default(),
         freq_weights,
+        resolution,
         kernel,
         weights,
         components,
@@ -505,6 +518,7 @@ impl RunConfig {
                 missing: Some(self.missing),
                 transform: Some(self.transform),
                 weights: self.freq_weights.clone(),
+                resolution: self.resolution,
             }),
             model: Some(ModelSection {
                 kernel: Some(self.kernel),

@@ -12,6 +12,7 @@ column = "value"              # header name of the numeric column
 missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
 transform = "none"            # "none", or "log" for positive data: fit ln x, report the density of x
 # weights = "count"           # column of integer frequency weights (binned/tabulated data; 0 drops a row)
+# resolution = 0.1            # values were recorded to this step: each x stands for [x - r/2, x + r/2)
 
 [model]
 kernel = "location-scale"     # "location": one common sd (bandwidth) for all components
