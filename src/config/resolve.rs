@@ -298,17 +298,21 @@ pub fn resolve(
     // step per sweep, for two to six times the effective draws per sweep (docs/model.md);
     // beyond COLLAPSED_MAX_N observations the default is the conditional step.
     let allocation = match (s.allocation, &freq_weights, summary) {
-        (Some(AllocationKind::Collapsed), Some(_), _) => {
+        // With a resolution the sampler draws each observation's exact value, so the
+        // collapsed scan can run on weighted rows too.
+        (Some(AllocationKind::Collapsed), Some(_), _) if resolution.is_none() => {
             return Err(ck.fail(
                 "sampler",
                 "allocation",
-                "= \"collapsed\" does not support [data] weights yet; use \"conditional\"".into(),
+                "= \"collapsed\" does not support [data] weights without [data] resolution; \
+                 use \"conditional\""
+                    .into(),
             ))
         }
         (Some(a), _, _) => a,
-        (None, Some(_), _) => AllocationKind::Conditional,
-        (None, None, Some(d)) if d.n > COLLAPSED_MAX_N => AllocationKind::Conditional,
-        (None, None, _) => AllocationKind::Collapsed,
+        (None, Some(_), _) if resolution.is_none() => AllocationKind::Conditional,
+        (None, _, Some(d)) if d.n > COLLAPSED_MAX_N => AllocationKind::Conditional,
+        (None, _, _) => AllocationKind::Collapsed,
     };
 
     let g = raw.grid.clone().unwrap_or_default();

@@ -1,10 +1,13 @@
 //! Loading the sample: one numeric column of a CSV file, checked cell by cell, the optional
-//! transform it is fitted on, and its summary and standardisation.
+//! transform it is fitted on, its summary and standardisation, and the cells it stands for
+//! when it was recorded at a resolution.
 
+mod cells;
 mod load;
 mod standardise;
 mod transform;
 
+pub use cells::Cells;
 pub use load::{
     load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, Sample,
 };

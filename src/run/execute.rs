@@ -316,6 +316,7 @@ fn run_one(
     let opts = SweepOptions {
         alloc,
         counts: prep.data.counts.as_deref(),
+        cells: prep.cells.as_ref(),
         ..SweepOptions::default()
     };
     let stop_kind = run_chain_opts(x, &prep.prior, &key, plan, start, &mut writer, stop, &opts)?;

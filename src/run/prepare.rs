@@ -7,7 +7,9 @@ use std::path::Path;
 use sha2::{Digest, Sha256};
 
 use crate::config::{parse_config_str, resolve, RunConfig};
-use crate::data::{load_weighted, load_weighted_from_reader, DataSummary, Standardised, Transform};
+use crate::data::{
+    load_weighted, load_weighted_from_reader, Cells, DataSummary, Standardised, Transform,
+};
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
 use crate::store::DataRecord;
@@ -19,6 +21,8 @@ pub struct Prepared {
     pub data: Standardised,
     pub prior: Prior,
     pub record: DataRecord,
+    /// The cells the values stand for when `[data] resolution` is set.
+    pub cells: Option<Cells>,
 }
 
 /// Lower-case hex SHA-256 of `bytes`.
@@ -117,6 +121,16 @@ impl Prepared {
         // written relative to the original config's folder.
         config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
+        let cells = config.resolution.map(|r| {
+            Cells::from_rows(
+                &sample.values,
+                sample.counts.as_deref(),
+                r,
+                config.transform,
+                data.centre,
+                data.scale,
+            )
+        });
         check_standard_prior(&prior, origin)?;
         let s = data.summary;
         let record = DataRecord {
@@ -135,6 +149,7 @@ impl Prepared {
             data,
             prior,
             record,
+            cells,
         })
     }
 }

@@ -11,6 +11,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 use serde::{Deserialize, Serialize};
 
 use super::allocate::{loglik_reference, loglik_weighted, loglik_with, ComponentTable};
+use super::censored::loglik_censored;
 use super::rng::StreamKey;
 use super::sweep::{sweep_opts, SweepOptions};
 use crate::error::Result;
@@ -138,11 +139,12 @@ pub fn run_chain_opts(
     }
     if let Some(occupied) = pending_occupied.take() {
         let table = ComponentTable::new(&state);
-        let ll = match opts.counts {
-            Some(c) => loglik_weighted(x, c, &table),
+        let ll = match (opts.cells, opts.counts) {
+            (Some(cells), _) => loglik_censored(cells, &state),
+            (None, Some(c)) => loglik_weighted(x, c, &table),
             // The collapsed sweep's first pass uses the reference arithmetic.
-            None if prior.collapsed => loglik_reference(x, &table),
-            None => loglik_with(x, &table, opts.alloc),
+            (None, None) if prior.collapsed => loglik_reference(x, &table),
+            (None, None) => loglik_with(x, &table, opts.alloc),
         };
         sink.draw(KeptDraw {
             iteration: t,

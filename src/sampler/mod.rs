@@ -6,6 +6,7 @@
 //! continues it exactly.
 
 pub mod allocate;
+pub mod censored;
 pub mod chain;
 pub mod collapsed;
 // The single full conditionals are public (hidden from the docs) so the joint-distribution

@@ -7,6 +7,7 @@ use super::allocate::{
     allocate_reference_labels, allocate_weighted, allocate_with, AllocOptions, Allocation,
     ComponentTable,
 };
+use super::censored::allocate_censored;
 use super::collapsed::collapsed_scan;
 use super::split_merge::split_merge;
 
@@ -22,6 +23,7 @@ use super::rng::StreamKey;
 use super::var_scale::update_var_scale_given_stats;
 use super::weights::update_weights;
 use crate::config::WeightsKind;
+use crate::data::Cells;
 use crate::model::{Prior, State};
 
 /// What a sweep reports besides the new state.
@@ -46,6 +48,9 @@ pub struct SweepOptions<'a> {
     /// Integer frequency weights, one per row of `x` (`None`: every row counts once, the
     /// fast path).
     pub counts: Option<&'a [u64]>,
+    /// The cells the data stand for when they were recorded at a resolution; when given,
+    /// the sweep samples given the cells and `x` and `counts` are not read.
+    pub cells: Option<&'a Cells>,
 }
 
 impl Default for SweepOptions<'_> {
@@ -54,6 +59,7 @@ impl Default for SweepOptions<'_> {
             ratios: &EXACT,
             alloc: AllocOptions::default(),
             counts: None,
+            cells: None,
         }
     }
 }
@@ -96,10 +102,13 @@ pub fn sweep_opts(
 ) -> SweepOutcome {
     pin_fixed(prior, state);
     let table = ComponentTable::new(state);
-    let mut alloc = match opts.counts {
-        Some(c) => allocate_weighted(x, c, &table, key, index),
-        None if prior.collapsed => collapsed_allocation(x, prior, state, &table, key, index),
-        None => allocate_with(x, &table, key, index, opts.alloc),
+    let mut alloc = match (opts.cells, opts.counts) {
+        (Some(cells), _) => censored_allocation(cells, prior, state, key, index),
+        (None, Some(c)) => allocate_weighted(x, c, &table, key, index),
+        (None, None) if prior.collapsed => {
+            collapsed_allocation(x, prior, state, &table, key, index)
+        }
+        (None, None) => allocate_with(x, &table, key, index, opts.alloc),
     };
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking && prior.collapsed {
@@ -148,6 +157,41 @@ fn collapsed_allocation(
     split_merge(
         x,
         &mut z,
+        &mut stats,
+        prior,
+        state,
+        SPLIT_MERGE_PROPOSALS,
+        &mut key.split_merge_rng(index),
+    );
+    Allocation {
+        stats,
+        loglik: first.loglik,
+    }
+}
+
+/// Components and exact values drawn given the parameters and the cells; for the collapsed
+/// sweep, then one collapsed scan and the split–merge proposals on the exact values drawn.
+fn censored_allocation(
+    cells: &Cells,
+    prior: &Prior,
+    state: &State,
+    key: &StreamKey,
+    index: u64,
+) -> Allocation {
+    let (first, latent) = allocate_censored(cells, state, key, index, prior.collapsed);
+    let Some(mut latent) = latent else {
+        return first;
+    };
+    let mut stats = collapsed_scan(
+        &latent.y,
+        &mut latent.z,
+        prior,
+        state,
+        &mut key.collapsed_rng(index),
+    );
+    split_merge(
+        &latent.y,
+        &mut latent.z,
         &mut stats,
         prior,
         state,
