@@ -16,8 +16,8 @@ use super::prepare::Prepared;
 use crate::error::{Error, Result};
 use crate::sampler::rng::StreamKey;
 use crate::sampler::{
-    initial_state, run_chain_opts, thread_split, AllocOptions, ChainPlan, ChainStop, Checkpoint,
-    SweepOptions,
+    initial_state, initial_state_from_cells, run_chain_opts, thread_split, AllocOptions, ChainPlan,
+    ChainStop, Checkpoint, SweepOptions,
 };
 use crate::store::{
     read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
@@ -285,7 +285,10 @@ fn run_one(
         let w = ChainWriter::create(id, &draws_path, &state_path, prep.prior.components, units)?;
         let start = Checkpoint {
             sweeps_done: 0,
-            state: initial_state(x, &prep.prior, &key),
+            state: match &prep.cells {
+                Some(cells) => initial_state_from_cells(cells, &prep.prior, &key),
+                None => initial_state(x, &prep.prior, &key),
+            },
             pending_occupied: None,
         };
         Ok((w, start))

@@ -25,6 +25,28 @@ pub struct Prepared {
     pub cells: Option<Cells>,
 }
 
+/// The distinct values of `values`, sorted, with their total counts (`counts[i]` for row
+/// i, or 1 each; rows with count 0 left out).
+fn tabulate(values: &[f64], counts: Option<&[u64]>) -> (Vec<f64>, Option<Vec<u64>>) {
+    let mut rows: Vec<(f64, u64)> = values
+        .iter()
+        .enumerate()
+        .map(|(i, &v)| (v, counts.map_or(1, |c| c[i])))
+        .filter(|&(_, c)| c > 0)
+        .collect();
+    rows.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut out: (Vec<f64>, Vec<u64>) = (Vec::new(), Vec::new());
+    for (v, c) in rows {
+        if out.0.last() == Some(&v) {
+            *out.1.last_mut().expect("a value was pushed") += c;
+        } else {
+            out.0.push(v);
+            out.1.push(c);
+        }
+    }
+    (out.0, Some(out.1))
+}
+
 /// Lower-case hex SHA-256 of `bytes`.
 pub fn sha256_hex(bytes: &[u8]) -> String {
     Sha256::digest(bytes)
@@ -92,9 +114,20 @@ impl Prepared {
             }
         };
         let data_origin = pre.data_file.display().to_string();
-        let fitted =
+        let mut fitted =
             pre.transform
                 .apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
+        let mut sample = sample;
+        if pre.resolution.is_some() {
+            // Recorded at a resolution, the sample is its table of distinct values: rows
+            // given one by one and as (value, count) then give the same run bit for bit.
+            (sample.values, sample.counts) = tabulate(&sample.values, sample.counts.as_deref());
+            fitted = sample
+                .values
+                .iter()
+                .map(|&v| pre.transform.forward(v))
+                .collect();
+        }
         let data = Standardised::with_counts(&fitted, sample.counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;

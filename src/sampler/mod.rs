@@ -28,6 +28,6 @@ pub mod weights;
 
 pub use allocate::{thread_split, AllocOptions, ComponentTable, SuffStats};
 pub use chain::{run_chain, run_chain_opts, ChainPlan, ChainStop, Checkpoint, DrawSink, KeptDraw};
-pub use init::initial_state;
+pub use init::{initial_state, initial_state_from_cells};
 pub use label_moves::{MoveRatios, MoveTally};
 pub use sweep::{sweep, sweep_opts, sweep_with, SweepOptions, SweepOutcome};
