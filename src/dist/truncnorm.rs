@@ -237,8 +237,8 @@ mod tests {
             ln_std_normal_interval(2.0, 3.0)
         );
         // A narrow cell far in a tail is still finite and close to width · density.
-        let (a, b) = (50.0, 50.001);
-        let approx = (b - a as f64).ln() - 0.5 * a * a - LN_SQRT_2PI;
+        let (a, b): (f64, f64) = (50.0, 50.001);
+        let approx = (b - a).ln() - 0.5 * a * a - LN_SQRT_2PI;
         assert!((ln_std_normal_interval(a, b) - approx).abs() < 0.03);
     }
 }
