@@ -108,6 +108,13 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
             dir.display()
         )));
     }
+    if let Some(r) = prep.config.resolution {
+        return Err(Error::input(format!(
+            "{}: the run treats its values as recorded to {r} ([data] resolution); compare's \
+             pointwise log-likelihood is that of exact values and does not support such runs yet",
+            dir.display()
+        )));
+    }
     if prep.data.counts.is_some() {
         return Err(Error::input(format!(
             "{}: the run uses [data] weights (frequency weights); compare works on one \
