@@ -4,35 +4,14 @@
 
 use std::path::Path;
 
-use crate::check::{check_run, CheckReport};
+use crate::check::CheckReport;
 use crate::error::{Error, Result};
 use crate::report::html::sig4;
-use crate::run::Prepared;
-use crate::store::{Manifest, RunLayout};
+use crate::run::check_run_dir;
 
 pub(super) fn check(run: &Path, json: bool) -> Result<i32> {
-    let layout = RunLayout::new(run);
-    if !layout.config().exists() || !layout.manifest().exists() {
-        return Err(Error::input(format!(
-            "{}: no config.toml and manifest.json; is this a mixband run directory?",
-            run.display()
-        )));
-    }
-    let manifest = Manifest::read(&layout.manifest())?;
-    let prep = Prepared::from_config_file(&layout.config())?;
-    if prep.record.sha256 != manifest.data.sha256 {
-        return Err(Error::input(format!(
-            "{}: the data file {} has changed since the run (SHA-256 {} then, {} now)",
-            run.display(),
-            prep.config.data_file.display(),
-            manifest.data.sha256,
-            prep.record.sha256
-        )));
-    }
     let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
-    let r = check_run(&layout, &prep, threads)?;
-    r.write(&layout)?;
-    r.write_figure(&layout)?;
+    let r = check_run_dir(run, threads)?;
     if json {
         let text = serde_json::to_string_pretty(&r)
             .map_err(|e| Error::internal(format!("cannot encode checks: {e}")))?;
