@@ -17,6 +17,7 @@
 pub mod ecdf_band;
 pub mod loo_pit;
 pub mod pvalue;
+pub mod recorded;
 pub mod replicate;
 pub mod stats;
 pub mod verdict;
@@ -197,9 +198,18 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
     let picks = replicate::evenly_spaced(total, set.replicates);
     let draws = replicate::read_draws(&stored, len, &picks)?;
     let size = obs.sorted.len();
+    // Data recorded at a resolution are compared with replicates recorded the same way.
+    let lattice = c.resolution.map(|r| {
+        let values: Vec<f64> = rows.iter().map(|row| row.0).collect();
+        recorded::Lattice::new(r, &values)
+    });
     let rep_stats = parallel_map(draws.len(), threads, |j| {
         let mut rng = check_rng(seed, j as u64);
-        let y = replicate::replicate(&draws[j], size, t, &mut rng);
+        let mut y = replicate::replicate(&draws[j], size, t, &mut rng);
+        if let Some(l) = &lattice {
+            // Recording is monotone, so the replicate stays in ascending order.
+            y.iter_mut().for_each(|v| *v = l.record(*v));
+        }
         stats::statistics(&y, h)
     });
     drop(draws);
@@ -224,42 +234,73 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
     // LOO-PIT.
     let loo_picks = replicate::evenly_spaced(total, set.loo_draws);
     let loo_draws = replicate::read_draws(&stored, len, &loo_picks)?;
-    let fitted: Vec<(f64, u64)> = prep
-        .data
-        .z
-        .iter()
-        .enumerate()
-        .map(|(i, &z)| {
+    let (pit, pareto_k, counts, rows_used, rows_total, subsampled) = match &prep.cells {
+        Some(cells) => {
+            let cp = recorded::cell_loo_pit(
+                cells,
+                (prep.data.centre, prep.data.scale),
+                &loo_draws,
+                set.max_observations,
+                seed,
+                threads,
+            );
+            let ones = vec![1; cp.pit.len()];
             (
-                prep.data.to_data(z),
-                prep.data.counts.as_ref().map_or(1, |c| c[i]),
+                cp.pit,
+                cp.pareto_k,
+                ones,
+                cp.cells_used,
+                cp.cells_total,
+                cp.subsampled,
             )
-        })
-        .filter(|&(_, c)| c > 0)
-        .collect();
-    let rows_total = fitted.len();
-    let loo_rows: Vec<(f64, u64)> = if rows_total > set.max_observations {
-        let mut rng = check_rng(seed, LOO_ROWS_STREAM);
-        replicate::distinct_indices(rows_total, set.max_observations, &mut rng)
-            .into_iter()
-            .map(|i| fitted[i])
-            .collect()
-    } else {
-        fitted
+        }
+        None => {
+            let fitted: Vec<(f64, u64)> = prep
+                .data
+                .z
+                .iter()
+                .enumerate()
+                .map(|(i, &z)| {
+                    (
+                        prep.data.to_data(z),
+                        prep.data.counts.as_ref().map_or(1, |c| c[i]),
+                    )
+                })
+                .filter(|&(_, c)| c > 0)
+                .collect();
+            let rows_total = fitted.len();
+            let loo_rows: Vec<(f64, u64)> = if rows_total > set.max_observations {
+                let mut rng = check_rng(seed, LOO_ROWS_STREAM);
+                replicate::distinct_indices(rows_total, set.max_observations, &mut rng)
+                    .into_iter()
+                    .map(|i| fitted[i])
+                    .collect()
+            } else {
+                fitted
+            };
+            let (ll, cdf) = loo_matrices(&loo_draws, &loo_rows, threads);
+            let lp = loo_pit::loo_pit(&ll, &cdf);
+            let counts: Vec<u64> = loo_rows.iter().map(|r| r.1).collect();
+            let used = loo_rows.len();
+            (
+                lp.pit,
+                lp.pareto_k,
+                counts,
+                used,
+                rows_total,
+                used < rows_total,
+            )
+        }
     };
-    let (ll, cdf) = loo_matrices(&loo_draws, &loo_rows, threads);
-    let lp = loo_pit::loo_pit(&ll, &cdf);
-    let counts: Vec<u64> = loo_rows.iter().map(|r| r.1).collect();
     let n_used: u64 = counts.iter().sum();
-    let high: u64 = lp
-        .pareto_k
+    let high: u64 = pareto_k
         .iter()
         .zip(&counts)
         .filter(|(k, _)| k.is_nan() || **k > HIGH_K)
         .map(|(_, c)| c)
         .sum();
     let z = ecdf_band::eval_points(BAND_INTERVALS);
-    let ecdf_c = ecdf_band::ecdf_counts(&lp.pit, &counts, &z);
+    let ecdf_c = ecdf_band::ecdf_counts(&pit, &counts, &z);
     let band = ecdf_band::simulated_band(
         n_used as usize,
         &z,
@@ -278,11 +319,11 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
     let share_high_k = high as f64 / n_used as f64;
     let loo = PitReport {
         draws_used: loo_draws.len(),
-        rows_used: loo_rows.len(),
+        rows_used,
         rows_total,
-        subsampled: loo_rows.len() < rows_total,
-        pit: lp.pit.clone(),
-        pareto_k: lp.pareto_k.iter().map(|&k| k.is_finite().then_some(k)).collect(),
+        subsampled,
+        pit,
+        pareto_k: pareto_k.iter().map(|&k| k.is_finite().then_some(k)).collect(),
         counts,
         share_k_above_0_7: share_high_k,
         ecdf,
