@@ -402,6 +402,15 @@ fn rounded_beta_data_with_values_on_the_bounds_fit_through_the_cli() {
     let ik = ise(&grid, &kde(&x, silverman_bandwidth(&x), &grid), &truth);
     eprintln!("rounded beta_2_2_on_10_30 through the CLI: ISE posterior mean {ip:.6}, KDE {ik:.6}");
     assert!(ip < ik, "ISE {ip} not below KDE {ik}");
+    // `bands` on a grid reaching a bound is refused by its option, and bands.csv is kept.
+    let code = mixband::cli::main_with_args(
+        ["mixband", "bands", out.to_str().unwrap(), "--from", "10"].map(std::ffi::OsString::from),
+    );
+    assert_ne!(code, 0);
+    assert_eq!(
+        std::fs::read_to_string(out.join("bands.csv")).unwrap(),
+        text
+    );
     let cfg = std::fs::read_to_string(out.join("config.toml")).unwrap();
     assert!(
         cfg.contains("transform = \"logit\"") && cfg.contains("lower = 10.0"),
