@@ -3,8 +3,8 @@
 //! same files, bit for bit, as the computation from every draw in memory
 //! (`mixband::run::summarise_in_memory`, the form they replaced) — for any window width,
 //! on runs whose chains have different lengths and a half-written last row, on the fitted
-//! and on the log and logit scales. Source of the requirement: issue #5 ("outputs stay identical");
-//! common practice, no source, for comparing the written files byte by byte.
+//! and on the log and logit scales. Source of the requirement: issue #5 ("outputs stay
+//! identical"); common practice, no source, for comparing the written files byte by byte.
 
 mod common;
 
