@@ -1,6 +1,6 @@
 //! `compare` on real run directories: the recomputed pointwise log-likelihood adds up to
-//! the sampler's stored log-likelihood of each draw (on the log scale, after removing the
-//! Jacobian Σ ln x_i), and runs over different data are refused.
+//! the sampler's stored log-likelihood of each draw (on the log and logit scales, after
+//! removing the Jacobian), and runs over different data are refused.
 
 use std::path::{Path, PathBuf};
 
@@ -71,7 +71,15 @@ fn pointwise_loglik_adds_up_and_different_data_are_refused() {
     let a = small_run(&dir, "a", &x, "");
     let b = small_run(&dir, "b", &x, "transform = \"log\"");
     let jac: f64 = x.iter().map(|v| v.ln()).sum();
-    for (run, shift) in [(&a, 0.0), (&b, jac)] {
+    // Logit on (0, 10): ln |dy/dx| = ln(10 / (x (10 − x))) (change of variables).
+    let l = small_run(
+        &dir,
+        "l",
+        &x,
+        "transform = \"logit\"\nlower = 0\nupper = 10",
+    );
+    let jac_logit: f64 = x.iter().map(|v| (v * (10.0 - v) / 10.0).ln()).sum();
+    for (run, shift) in [(&a, 0.0), (&b, jac), (&l, jac_logit)] {
         let r = run_loglik(run).unwrap();
         let stored = stored_loglik(run);
         assert_eq!(r.ll.draws, stored.len());
@@ -86,8 +94,13 @@ fn pointwise_loglik_adds_up_and_different_data_are_refused() {
             );
         }
     }
-    let scored = compare(&[run_loglik(&a).unwrap(), run_loglik(&b).unwrap()]).unwrap();
-    assert_eq!(scored.len(), 2);
+    let scored = compare(&[
+        run_loglik(&a).unwrap(),
+        run_loglik(&b).unwrap(),
+        run_loglik(&l).unwrap(),
+    ])
+    .unwrap();
+    assert_eq!(scored.len(), 3);
     assert_eq!(scored[0].rank, 0);
     assert!(scored[1].elpd_diff_loo >= 0.0 && scored[1].se_diff_loo > 0.0);
     let mut y = x.clone();

@@ -124,7 +124,7 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
     }
     let t = prep.config.transform;
     let y: Vec<f64> = prep.data.z.iter().map(|&z| prep.data.to_data(z)).collect();
-    let jac: Vec<f64> = y.iter().map(|&v| t.log_jacobian(t.inverse(v))).collect();
+    let jac: Vec<f64> = y.iter().map(|&v| t.log_jacobian_fitted(v)).collect();
     let obs = y.len();
     let mut values = Vec::with_capacity(draws.chains.len() * per_chain * obs);
     let mut terms = Vec::new();

@@ -72,8 +72,14 @@ pub struct DataSection {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub units: Option<String>,
     pub missing: Option<MissingPolicy>,
-    /// "none" or "log": the scale the mixture is fitted on (see src/data/transform.rs).
-    pub transform: Option<crate::data::Transform>,
+    /// "none", "log" or "logit": the scale the mixture is fitted on (see
+    /// src/data/transform.rs).
+    pub transform: Option<crate::data::TransformKind>,
+    /// The bounds of `transform = "logit"`: the data lie strictly between them.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub lower: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub upper: Option<f64>,
     /// Header name of a column of integer frequency weights (binned or tabulated data).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub weights: Option<String>,

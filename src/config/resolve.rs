@@ -7,7 +7,7 @@ use serde::Serialize;
 
 use super::locate::{key_line, section_line};
 use super::raw::*;
-use crate::data::DataSummary;
+use crate::data::{DataSummary, Transform, TransformKind};
 use crate::error::{Error, Result};
 
 /// Reads and parses a config file. Errors name the file and, from the TOML parser, the
@@ -53,7 +53,8 @@ pub struct RunConfig {
     pub column: String,
     pub units: Option<String>,
     pub missing: MissingPolicy,
-    pub transform: crate::data::Transform,
+    /// `[data] transform` with its bounds (`[data] lower` and `upper` under the logit).
+    pub transform: Transform,
     /// `[data] weights`: column of integer frequency weights, if any.
     pub freq_weights: Option<String>,
     /// `[data] resolution`: each value stands for [x − r/2, x + r/2), in data units.
@@ -132,6 +133,17 @@ impl Checker<'_> {
             .unwrap_or_else(|| format!(" (add a [{section}] section)"));
         Error::input(format!(
             "{}: missing required key [{section}] {key}{place}",
+            self.origin
+        ))
+    }
+
+    /// A key that `needs` makes required.
+    fn missing_with(&self, section: &str, key: &str, needs: &str) -> Error {
+        let place = section_line(self.text, section)
+            .map(|l| format!(" (section starts at line {l})"))
+            .unwrap_or_else(|| format!(" (add a [{section}] section)"));
+        Error::input(format!(
+            "{}: missing key [{section}] {key}, required by {needs}{place}",
             self.origin
         ))
     }
@@ -228,6 +240,7 @@ pub fn resolve(
         }
         r => r,
     };
+    let transform = resolve_transform(&data, &ck)?;
     let data_file = if Path::new(&file).is_absolute() {
         PathBuf::from(&file)
     } else {
@@ -328,6 +341,18 @@ pub fn resolve(
             ));
         }
     }
+    if let Transform::Logit(b) = transform {
+        // A grid end given on or beyond a bound is refused rather than clipped, so the
+        // grid a run reports is the one written in its config (an end left out defaults
+        // inside the bounds).
+        let mid = b.lower() + 0.5 * (b.upper() - b.lower());
+        transform
+            .check_grid(
+                from.unwrap_or(mid.min(to.unwrap_or(mid))),
+                to.unwrap_or(mid.max(from.unwrap_or(mid))),
+            )
+            .map_err(|(key, m)| ck.fail("grid", key, m))?;
+    }
 
     let levels = raw
         .bands
@@ -423,7 +448,7 @@ pub fn resolve(
         column,
         units: data.units.clone(),
         missing: data.missing.unwrap_or(MissingPolicy::Error),
-        transform: data.transform.unwrap_or_default(),
+        transform,
         freq_weights,
         resolution,
         kernel,
@@ -520,7 +545,9 @@ impl RunConfig {
                 column: Some(self.column.clone()),
                 units: self.units.clone(),
                 missing: Some(self.missing),
-                transform: Some(self.transform),
+                transform: Some(self.transform.kind()),
+                lower: self.transform.bounds().map(|b| b.lower()),
+                upper: self.transform.bounds().map(|b| b.upper()),
                 weights: self.freq_weights.clone(),
                 resolution: self.resolution,
             }),
@@ -587,4 +614,43 @@ impl RunConfig {
             env!("CARGO_PKG_VERSION")
         ))
     }
+}
+
+/// `[data] transform` with `lower` and `upper`: the bounds are required by "logit" (both
+/// finite, lower < upper) and refused with any other transform.
+fn resolve_transform(data: &DataSection, ck: &Checker) -> Result<Transform> {
+    let kind = data.transform.unwrap_or_default();
+    let lower = ck.finite("data", "lower", data.lower)?;
+    let upper = ck.finite("data", "upper", data.upper)?;
+    if kind != TransformKind::Logit {
+        for (key, v) in [("lower", lower), ("upper", upper)] {
+            if v.is_some() {
+                return Err(ck.fail(
+                    "data",
+                    key,
+                    "is a bound of transform = \"logit\" and is refused with any other \
+                     transform; remove it or set transform = \"logit\""
+                        .into(),
+                ));
+            }
+        }
+    }
+    Ok(match kind {
+        TransformKind::None => Transform::None,
+        TransformKind::Log => Transform::Log,
+        TransformKind::Logit => {
+            let l =
+                lower.ok_or_else(|| ck.missing_with("data", "lower", "transform = \"logit\""))?;
+            let u =
+                upper.ok_or_else(|| ck.missing_with("data", "upper", "transform = \"logit\""))?;
+            if l >= u {
+                return Err(ck.fail(
+                    "data",
+                    "lower",
+                    format!("must be below [data] upper, got lower = {l}, upper = {u}"),
+                ));
+            }
+            Transform::logit(l, u)?
+        }
+    })
 }

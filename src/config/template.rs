@@ -10,7 +10,10 @@ file = "measurements.csv"     # CSV with a header row; relative to this file's f
 column = "value"              # header name of the numeric column
 # units = "mm"                # used in axis labels
 missing = "error"             # empty cells: "error" or "drop" (the run reports how many)
-transform = "none"            # "none", or "log" for positive data: fit ln x, report the density of x
+transform = "none"            # "none", "log" for positive data: fit ln x, report the density of x,
+                              # or "logit" for data between lower and upper: fit ln((x - lower)/(upper - x))
+# lower = 0.0                 # bounds of transform = "logit" (required with it, refused otherwise);
+# upper = 1.0                 # values on a bound are accepted only with a resolution (censored there)
 # weights = "count"           # column of integer frequency weights (binned/tabulated data; 0 drops a row)
 # resolution = 0.1            # values were recorded to this step: each x stands for [x - r/2, x + r/2)
 
@@ -94,5 +97,17 @@ mod tests {
             crate::config::resolve(&raw, &on, "template", std::path::Path::new("."), None).unwrap();
         assert_eq!(cfg.shape.regions.len(), 1);
         assert_eq!(cfg.shape.regions[0].from, 70.0);
+        // The logit lines, switched on, resolve to the logit on (0, 1).
+        let on = TEMPLATE
+            .replace("transform = \"none\"", "transform = \"logit\"")
+            .replace("# lower = 0.0", "lower = 0.0")
+            .replace("# upper = 1.0", "upper = 1.0");
+        let raw = crate::config::parse_config_str(&on, "template").unwrap();
+        let cfg =
+            crate::config::resolve(&raw, &on, "template", std::path::Path::new("."), None).unwrap();
+        assert_eq!(
+            cfg.transform,
+            crate::data::Transform::logit(0.0, 1.0).unwrap()
+        );
     }
 }

@@ -5,8 +5,9 @@
 //!
 //! Rows given one by one and the same rows given as (value, count) become the same cells,
 //! so the sampler's draws cannot tell them apart. A cell edge outside the transform's
-//! support (the lower edge of a small positive value under the log) is censored at the
-//! bound: it becomes −∞ (or +∞) on the fitted scale.
+//! support (the lower edge of a small positive value under the log, an edge reaching a
+//! bound under the logit) is censored at the bound: it becomes −∞ (or +∞) on the fitted
+//! scale.
 
 use super::transform::Transform;
 
@@ -113,5 +114,20 @@ mod tests {
         assert_eq!(c.lo[0], f64::NEG_INFINITY);
         assert!((c.hi[0] - 0.09f64.ln()).abs() < 1e-12);
         assert!((c.lo[1] - 1.95f64.ln()).abs() < 1e-12);
+    }
+
+    #[test]
+    fn logit_cells_reaching_a_bound_are_censored_there() {
+        // On (0, 1) to 0.1: 0 stands for [−0.05, 0.05) ∩ (0, 1) = (0, 0.05), so its cell is
+        // (−∞, logit 0.05); 1 stands for (0.95, 1), so (logit 0.95, +∞); 0.5 is inside.
+        let t = Transform::logit(0.0, 1.0).unwrap();
+        let c = Cells::from_rows(&[0.0, 0.5, 1.0, 0.5], None, 0.1, t, 0.0, 1.0);
+        let logit = |p: f64| (p / (1.0 - p)).ln();
+        assert_eq!(c.count, vec![1, 2, 1]);
+        assert_eq!(c.lo[0], f64::NEG_INFINITY);
+        assert!((c.hi[0] - logit(0.05)).abs() < 1e-12);
+        assert!((c.lo[1] - logit(0.45)).abs() < 1e-12 && (c.hi[1] - logit(0.55)).abs() < 1e-12);
+        assert!((c.lo[2] - logit(0.95)).abs() < 1e-12);
+        assert_eq!(c.hi[2], f64::INFINITY);
     }
 }

@@ -12,4 +12,4 @@ pub use load::{
     load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, Sample,
 };
 pub use standardise::{DataSummary, Standardised};
-pub use transform::Transform;
+pub use transform::{Bounds, Transform, TransformKind};

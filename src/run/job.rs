@@ -292,6 +292,9 @@ pub fn rebuild_bands(run: &Path, req: &GridRequest) -> Result<RunLayout> {
             "--from must be below --to, got {from} and {to}"
         )));
     }
+    c.transform
+        .check_grid(from, to)
+        .map_err(|(end, m)| Error::input(format!("--{end} {m}")))?;
     resolve_check_levels(&levels).map_err(|m| Error::input(format!("--levels {m}")))?;
     let manifest = Manifest::read(&layout.manifest())?;
     let grid = linspace(from, to, points);

@@ -114,9 +114,13 @@ impl Prepared {
             }
         };
         let data_origin = pre.data_file.display().to_string();
-        let mut fitted =
-            pre.transform
-                .apply(&sample.values, &sample.origins, &data_origin, &pre.column)?;
+        let mut fitted = pre.transform.apply_recorded(
+            &sample.values,
+            &sample.origins,
+            &data_origin,
+            &pre.column,
+            pre.resolution,
+        )?;
         let mut sample = sample;
         if pre.resolution.is_some() {
             // Recorded at a resolution, the sample is its table of distinct values: rows
@@ -125,7 +129,7 @@ impl Prepared {
             fitted = sample
                 .values
                 .iter()
-                .map(|&v| pre.transform.forward(v))
+                .map(|&v| pre.transform.fitted_value(v, pre.resolution))
                 .collect();
         }
         let data = Standardised::with_counts(&fitted, sample.counts.clone(), &data_origin)?;
@@ -133,7 +137,9 @@ impl Prepared {
         config.seed = pre.seed;
         if pre.transform != Transform::None {
             // Priors are set on the fitted scale, but the grid is on the original scale:
-            // take its defaults from the untransformed sample, starting at 0 at the lowest.
+            // take its defaults from the untransformed sample, inside the support
+            // (Transform::default_grid: from 0 under the log, strictly inside the bounds
+            // under the logit).
             let on_x = resolve(
                 &raw,
                 text,
@@ -146,8 +152,21 @@ impl Prepared {
                 )?),
             )?;
             let given = raw.grid.clone().unwrap_or_default();
-            config.grid_from = given.from.unwrap_or(on_x.grid_from.max(0.0));
-            config.grid_to = given.to.unwrap_or(on_x.grid_to);
+            let (from, to) =
+                config
+                    .transform
+                    .default_grid(on_x.grid_from, on_x.grid_to, config.grid_points);
+            config.grid_from = given.from.unwrap_or(from);
+            config.grid_to = given.to.unwrap_or(to);
+            if config.grid_from >= config.grid_to {
+                // One end given, the other defaulted from the data on the other side of it.
+                let key = if given.from.is_some() { "from" } else { "to" };
+                return Err(Error::input(format!(
+                    "{origin}: [grid] {key} leaves an empty grid with the default for the other \
+                     end: from = {}, to = {}; set both",
+                    config.grid_from, config.grid_to
+                )));
+            }
         }
         // RUN/config.toml must find the data from inside the run directory (sample it again,
         // `bands`, `resume`, `extend`), so it records the absolute path, not the path as

@@ -187,6 +187,43 @@ mod tests {
     }
 
     #[test]
+    fn cells_with_infinite_ends_have_the_tail_probabilities() {
+        // A cell censored at a bound of the support is a half-line on the fitted scale:
+        // its likelihood is the mixture CDF at its finite end (−∞ below) or one minus it
+        // (+∞ above), with statrs' normal CDF as the reference.
+        use statrs::distribution::ContinuousCDF;
+        let s = two_component_state();
+        let cdf = |y: f64| {
+            (0..s.k())
+                .map(|j| {
+                    let n = Normal::new(s.mu[j], s.var[j].sqrt()).unwrap();
+                    s.log_w[j].exp() * n.cdf(y)
+                })
+                .sum::<f64>()
+        };
+        let cells = Cells {
+            lo: vec![f64::NEG_INFINITY, 1.3],
+            hi: vec![-2.2, f64::INFINITY],
+            count: vec![3, 2],
+        };
+        let want = 3.0 * cdf(-2.2).ln() + 2.0 * (1.0 - cdf(1.3)).ln();
+        let got = loglik_censored(&cells, &s);
+        assert!((got - want).abs() < 1e-10, "{got} vs {want}");
+        // Far out, where 1 − F rounds badly, the value stays finite (the tail is taken in
+        // log space).
+        let far = Cells {
+            lo: vec![40.0],
+            hi: vec![f64::INFINITY],
+            count: vec![1],
+        };
+        assert!(loglik_censored(&far, &s).is_finite());
+        // The latent values drawn stay on their half-lines.
+        let (_, l) = allocate_censored(&cells, &s, &StreamKey::new(7, 1), 2, true);
+        let l = l.unwrap();
+        assert!(l.y[..3].iter().all(|&y| y <= -2.2) && l.y[3..].iter().all(|&y| y >= 1.3));
+    }
+
+    #[test]
     fn latent_values_stay_in_their_cells_and_make_the_statistics() {
         let s = two_component_state();
         let cells = Cells {

@@ -23,10 +23,10 @@ pub fn mixture_cdf(row: &DrawRow, x: f64) -> f64 {
 }
 
 /// The CDF of the original-scale variable at `x` for a draw fitted on scale `t`
-/// (t is increasing, so F_X(x) = F_Y(t(x))).
+/// (t is increasing, so F_X(x) = F_Y(t(x)); 0 below the support and 1 above it).
 pub fn mixture_cdf_on(row: &DrawRow, x: f64, t: Transform) -> f64 {
-    if !t.in_support(x) {
-        return 0.0;
+    if let Some(f) = t.cdf_outside(x) {
+        return f;
     }
     mixture_cdf(row, t.forward(x))
 }

@@ -5,13 +5,15 @@
 //! sd and equal-tailed credible intervals. Under `[data] transform = "log"` the features
 //! are those of x = e^y: quantiles map through exp, and each component is log-normal with
 //! mean e^(μ+σ²/2) and variance (e^(σ²) − 1) e^(2μ+σ²) (log-normal moments; common
-//! practice, no source).
+//! practice, no source). Under `transform = "logit"` a component's x = l + (u − l) σ(y)
+//! has no closed-form moments; they are integrated over y ~ N(μ, σ²) by the trapezoid rule
+//! in z = (y − μ)/σ (see [`logit_moments`]).
 
 use serde::Serialize;
 
 use super::cdf::mixture_cdf;
 use super::quantile::quantile_sorted;
-use crate::data::Transform;
+use crate::data::{Bounds, Transform};
 use crate::store::DrawRow;
 
 /// An equal-tailed credible interval.
@@ -81,6 +83,9 @@ pub fn mixture_mean_on(row: &DrawRow, t: Transform) -> f64 {
         Transform::Log => (0..row.weight.len())
             .map(|k| row.weight[k] * lognormal_mean(row, k))
             .sum(),
+        Transform::Logit(b) => (0..row.weight.len())
+            .map(|k| row.weight[k] * logit_moments(row.mean[k], row.sd[k], b).0)
+            .sum(),
     }
 }
 
@@ -99,7 +104,67 @@ pub fn mixture_sd_on(row: &DrawRow, t: Transform) -> f64 {
                 .sum();
             v.sqrt()
         }
+        Transform::Logit(b) => {
+            let moments: Vec<(f64, f64)> = (0..row.weight.len())
+                .map(|k| logit_moments(row.mean[k], row.sd[k], b))
+                .collect();
+            let m: f64 = moments
+                .iter()
+                .zip(&row.weight)
+                .map(|((mk, _), w)| w * mk)
+                .sum();
+            let v: f64 = moments
+                .iter()
+                .zip(&row.weight)
+                .map(|((mk, vk), w)| w * (vk + (mk - m).powi(2)))
+                .sum();
+            v.sqrt()
+        }
     }
+}
+
+/// Half-width, in standard deviations, of the range the logit moments are integrated over:
+/// the normal mass beyond ±9 is below 1e-18 and x is bounded, so cutting there loses
+/// nothing a double can hold.
+const LOGIT_Z_MAX: f64 = 9.0;
+/// Step of the trapezoid rule in z. For an integrand analytic in a strip |Im z| < a the
+/// rule's error on the real line falls like e^(−2πa/h) (Trefethen & Weideman 2014, "The
+/// exponentially convergent trapezoidal rule", SIAM Review 56(3); recalled from memory);
+/// σ(μ + σz) has its nearest poles at Im z = ±π/σ, so the error is about e^(−2π²/(σh)):
+/// below double precision up to σ ≈ 10 on the logit scale, about 1e-6 at σ = 30. Checked
+/// against scipy's adaptive quadrature in tests/transform_logit.rs.
+const LOGIT_Z_STEP: f64 = 0.05;
+
+/// The trapezoid nodes z_i and normalised weights φ(z_i) h / Σ φ(z_j) h, computed once.
+fn logit_nodes() -> &'static [(f64, f64)] {
+    static NODES: std::sync::OnceLock<Vec<(f64, f64)>> = std::sync::OnceLock::new();
+    NODES.get_or_init(|| {
+        let n = (LOGIT_Z_MAX / LOGIT_Z_STEP).round() as i64;
+        let raw: Vec<(f64, f64)> = (-n..=n)
+            .map(|i| {
+                let z = i as f64 * LOGIT_Z_STEP;
+                (z, (-0.5 * z * z).exp())
+            })
+            .collect();
+        let total: f64 = raw.iter().map(|p| p.1).sum();
+        raw.into_iter().map(|(z, w)| (z, w / total)).collect()
+    })
+}
+
+/// Mean and variance of x = l + (u − l) σ(y) for y ~ N(μ, σ²), σ the logistic function
+/// (the logit-normal on (l, u)), by the trapezoid rule in z; the variance as the mean
+/// squared deviation from that mean (two passes, no cancellation).
+pub fn logit_moments(mu: f64, sd: f64, b: Bounds) -> (f64, f64) {
+    let t = Transform::Logit(b);
+    let nodes = logit_nodes();
+    let xs: Vec<f64> = nodes.iter().map(|&(z, _)| t.inverse(mu + sd * z)).collect();
+    let m: f64 = xs.iter().zip(nodes).map(|(x, &(_, w))| w * x).sum();
+    let v: f64 = xs
+        .iter()
+        .zip(nodes)
+        .map(|(x, &(_, w))| w * (x - m) * (x - m))
+        .sum();
+    (m.clamp(b.lower(), b.upper()), v)
 }
 
 fn lognormal_mean(row: &DrawRow, k: usize) -> f64 {
