@@ -82,6 +82,16 @@ fn tabulated_and_row_by_row_samples_give_the_same_draws_bit_for_bit() {
 }
 
 /// Runs `mixband sample` on the frequency table with the defaults and returns its exit code.
+/// `mixband sample DIR/run.toml --out DIR/run` without the report.
+fn sample_cli(dir: &std::path::Path) -> std::process::Output {
+    Command::new(env!("CARGO_BIN_EXE_mixband"))
+        .args(["sample", "-q", "--no-report", "--out"])
+        .arg(dir.join("run"))
+        .arg(dir.join("run.toml"))
+        .output()
+        .unwrap()
+}
+
 fn sample_table(resolution: Option<f64>) -> i32 {
     let dir = scratch_dir("res-gate");
     std::fs::write(dir.join("t.csv"), table_csv()).unwrap();
@@ -94,12 +104,7 @@ fn sample_table(resolution: Option<f64>) -> i32 {
         ),
     )
     .unwrap();
-    let out = Command::new(env!("CARGO_BIN_EXE_mixband"))
-        .args(["sample", "-q", "--no-report", "--out"])
-        .arg(dir.join("run"))
-        .arg(dir.join("run.toml"))
-        .output()
-        .unwrap();
+    let out = sample_cli(&dir);
     let _ = std::fs::remove_dir_all(&dir);
     out.status.code().expect("exit code")
 }
@@ -202,12 +207,7 @@ fn the_model_check_compares_cells_with_cells() {
          [sampler]\nchains = 2\nwarmup = 400\ndraws = 800\nseed = 31\n",
     )
     .unwrap();
-    let out = Command::new(env!("CARGO_BIN_EXE_mixband"))
-        .args(["sample", "-q", "--no-report", "--out"])
-        .arg(dir.join("run"))
-        .arg(dir.join("run.toml"))
-        .output()
-        .unwrap();
+    let out = sample_cli(&dir);
     assert!(matches!(out.status.code(), Some(0) | Some(3)), "{out:?}");
     let text = std::fs::read_to_string(dir.join("run/checks.json")).unwrap();
     let _ = std::fs::remove_dir_all(&dir);

@@ -101,15 +101,22 @@ pub fn interval_matrices(
         out
     });
     let s = draws.len();
-    let matrix = |pick: fn(&(Vec<f64>, Vec<f64>, Vec<f64>)) -> &Vec<f64>| LogLik {
+    let (mut ll, mut f_lo, mut f_hi) = (
+        Vec::with_capacity(s * n),
+        Vec::with_capacity(s * n),
+        Vec::with_capacity(s * n),
+    );
+    for (a, b, c) in per_draw {
+        ll.extend(a);
+        f_lo.extend(b);
+        f_hi.extend(c);
+    }
+    let matrix = |values| LogLik {
         draws: s,
         obs: n,
-        values: per_draw
-            .iter()
-            .flat_map(|d| pick(d).iter().copied())
-            .collect(),
+        values,
     };
-    (matrix(|d| &d.0), matrix(|d| &d.1), matrix(|d| &d.2))
+    (matrix(ll), matrix(f_lo), matrix(f_hi))
 }
 
 /// The cells on the fitted scale in data units: (lower edges, upper edges), from the

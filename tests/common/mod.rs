@@ -133,3 +133,35 @@ pub fn run_to_density(
     let dens = mixband::summary::DensityDraws::new(&draws, &grid);
     (prep, draws, dens)
 }
+
+/// Runs `mixband sample CONFIG --out OUT -q --threads 1` in this process and checks its exit
+/// code: 0, or 3 when the convergence gate fails on a short run (outputs are still written).
+pub fn sample_in_process(config: &std::path::Path, out: &std::path::Path) {
+    let code = mixband::cli::main_with_args(
+        [
+            "mixband",
+            "sample",
+            config.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "-q",
+            "--threads",
+            "1",
+        ]
+        .map(std::ffi::OsString::from),
+    );
+    assert!(code == 0 || code == 3, "exit code {code}");
+}
+
+/// The (x, mean) columns of a bands.csv.
+pub fn bands_mean(path: &std::path::Path) -> Vec<(f64, f64)> {
+    std::fs::read_to_string(path)
+        .unwrap()
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let c: Vec<f64> = l.split(',').take(2).map(|v| v.parse().unwrap()).collect();
+            (c[0], c[1])
+        })
+        .collect()
+}
