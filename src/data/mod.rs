@@ -1,13 +1,15 @@
 //! Loading the sample: one numeric column of a CSV file, checked cell by cell, the optional
 //! transform it is fitted on, its summary and standardisation, and the cells it stands for
-//! when it was recorded at a resolution.
+//! when it was recorded at a resolution, and how it was recorded (lattice, heaping).
 
 mod cells;
+mod lattice;
 mod load;
 mod standardise;
 mod transform;
 
 pub use cells::Cells;
+pub use lattice::{Heaping, Lattice, Recording};
 pub use load::{
     load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, Sample,
 };
