@@ -61,6 +61,14 @@ pub(super) fn announce(prep: &Prepared) {
             String::new()
         }
     );
+    print_notes(prep.record.recording.as_ref());
+}
+
+/// How the values were recorded, when there is something to say (lattice, heaping).
+fn print_notes(recording: Option<&crate::data::Recording>) {
+    for note in recording.iter().flat_map(|r| r.notes()) {
+        eprintln!("mixband: note: {note}");
+    }
 }
 
 /// Samples and summarises; shared by `sample` and `demo`.
@@ -97,7 +105,10 @@ pub(super) fn resume(run: &Path, extra_draws: Option<usize>, opts: &SampleOpts) 
         return Err(Error::input("--threads must be at least 1"));
     }
     match continue_run(run, extra_draws, job_options(opts))? {
-        Continued::Done(result) => Ok(print_result(&result)),
+        Continued::Done(result) => {
+            print_notes(result.manifest.data.recording.as_ref());
+            Ok(print_result(&result))
+        }
         Continued::AlreadyComplete => {
             eprintln!(
                 "mixband: {} is already complete; nothing to resume (use `mixband extend` for more draws)",

@@ -158,6 +158,10 @@ fn metadata(out: &mut String, inp: &RunInputs) {
                 format!("n = {}", m.data.n)
             },
         ),
+        (
+            "recording",
+            super::recording::treatment(inp.prep.record.recording.as_ref(), c.resolution),
+        ),
         ("seed", m.seed.to_string()),
         (
             "model",
@@ -350,6 +354,7 @@ pub fn page(p: &PageParts<'_>) -> String {
         inp.manifest.seed
     );
     banner(&mut out, p);
+    super::recording::recording_note(&mut out, inp.prep.record.recording.as_ref());
     figure(
         &mut out,
         &p.figures.density,

@@ -1,12 +1,14 @@
 //! RUN/report.html: a single self-contained page with the run's metadata, the density
 //! figure, the convergence verdict and diagnostics, the bands (as a table and a
-//! downloadable CSV), the trace and rank plots, and the caution that goes with the bands.
+//! downloadable CSV), the trace and rank plots, how the values were recorded, and the
+//! caution that goes with the bands.
 
 pub mod bumps;
 pub mod diagnostics_view;
 pub mod encode;
 pub mod html;
 pub mod model_check;
+pub mod recording;
 pub mod shape;
 
 use std::path::{Path, PathBuf};

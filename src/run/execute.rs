@@ -151,6 +151,7 @@ pub fn execute(
                 )));
             }
             m.config = config_json;
+            m.data.recording = prep.record.recording.clone();
             m.status = RunStatus::Running;
             for c in &mut m.chains {
                 c.sweeps_planned = plan.total_sweeps();

@@ -8,7 +8,8 @@ use sha2::{Digest, Sha256};
 
 use crate::config::{parse_config_str, resolve, RunConfig};
 use crate::data::{
-    load_weighted, load_weighted_from_reader, Cells, DataSummary, Standardised, Transform,
+    load_weighted, load_weighted_from_reader, Cells, DataSummary, Recording, Standardised,
+    Transform,
 };
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
@@ -122,6 +123,8 @@ impl Prepared {
             pre.resolution,
         )?;
         let mut sample = sample;
+        // On the values as recorded (data units), before anything is tabulated.
+        let recording = Recording::detect(&sample.values, sample.counts.as_deref(), pre.resolution);
         if pre.resolution.is_some() {
             // Recorded at a resolution, the sample is its table of distinct values: rows
             // given one by one and as (value, count) then give the same run bit for bit.
@@ -195,6 +198,7 @@ impl Prepared {
             sd: s.sd,
             min: s.min,
             max: s.max,
+            recording: Some(recording),
         };
         Ok(Prepared {
             config,

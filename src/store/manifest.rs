@@ -30,6 +30,10 @@ pub struct DataRecord {
     pub sd: f64,
     pub min: f64,
     pub max: f64,
+    /// How the values were recorded: the resolution in force, and the lattice or heaping
+    /// found in them (absent in runs made before it was recorded).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recording: Option<crate::data::Recording>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
