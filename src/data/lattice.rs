@@ -16,7 +16,8 @@
 //! are reported only when values tie substantially (at least [`MIN_TIE_SHARE`] of the
 //! observations repeat an earlier value): continuous data printed to six significant digits
 //! lie on a fine decimal lattice too (and values above 1 on a ten times coarser one), but
-//! hardly tie, and only ties let components collapse onto single values.
+//! hardly tie, and only ties let components collapse onto single values. Nor is a lattice
+//! finer than [`MIN_STEP_SD`] sample sds reported.
 //!
 //! Heaping. On a lattice of step r through 0, the coarser lattice of step m·r (m = 2, 4, 5,
 //! 10, 20, 50, 100, with m·r at most the sample's sd) is compared with its neighbours: the
@@ -39,6 +40,11 @@ pub const LATTICE_DISTINCT_SHARE: f64 = 0.8;
 /// Share of the observations that must repeat an earlier value (1 − distinct / n) for a
 /// lattice to be reported.
 pub const MIN_TIE_SHARE: f64 = 0.2;
+/// A lattice finer than this many sample sds is not reported: rounding to it moves the
+/// variance by (step/sd)²/12 (Sheppard's correction; from memory), under 1e-7 of it, and
+/// cannot shape a density estimate. Continuous values printed to six significant digits
+/// tie in very large samples, on such a lattice.
+pub const MIN_STEP_SD: f64 = 1e-3;
 /// Observed over expected count on a coarse lattice for heaping to be reported (a Whipple
 /// index of 125, the bound between "approximate" and "rough" age data in the United
 /// Nations' classification; from memory).
@@ -171,7 +177,10 @@ fn find_lattice(table: &[(f64, u64)], n: u64) -> Option<Found> {
         .map(|t| t.0.abs())
         .fold(0.0f64, f64::max)
         .max(table[distinct - 1].0 - table[0].0);
-    // Powers of ten from above the largest value down to the noise floor.
+    if !(biggest.is_finite() && biggest >= 1e-290) {
+        return None; // a spread beyond f64, or values too close to 0 to have digits
+    }
+    // Powers of ten from above the largest value down to the noise floor (ten decades).
     let top = biggest.log10().floor() as i32 + 1;
     let bottom = (biggest * MIN_STEP_REL).log10().ceil() as i32;
     for e in (bottom..=top).rev() {
@@ -220,6 +229,9 @@ fn find_lattice(table: &[(f64, u64)], n: u64) -> Option<Found> {
             }
         };
         let (share, _) = shares(&points, n, distinct);
+        if !(unit(g).is_finite() && unit(phase).is_finite()) {
+            return None;
+        }
         return Some(Found {
             lattice: Lattice {
                 step: unit(g),
@@ -308,10 +320,9 @@ impl Recording {
         let distinct = table.len();
         let found = find_lattice(&table, n);
         let ties = n > 0 && (distinct as f64) <= (1.0 - MIN_TIE_SHARE) * n as f64;
-        let found = found.filter(|_| ties);
-        let heaping = found
-            .as_ref()
-            .and_then(|f| find_heaping(f, n, table_sd(&table, n)));
+        let sd = table_sd(&table, n);
+        let found = found.filter(|f| ties && f.lattice.step >= MIN_STEP_SD * sd);
+        let heaping = found.as_ref().and_then(|f| find_heaping(f, n, sd));
         Recording {
             resolution,
             n,

@@ -91,6 +91,30 @@ fn continuous_samples_are_not_flagged() {
 }
 
 #[test]
+fn a_million_values_printed_to_six_digits_are_not_flagged() {
+    // They tie (a third of them lie in [1, 4) on steps of 1e-5), but the lattice is a
+    // millionth of the sd (common practice, no source).
+    let x = normal(1_000_000, 0.0, 1.0, 12);
+    let six: Vec<f64> = x
+        .iter()
+        .map(|v| format!("{v:.5e}").parse().unwrap())
+        .collect();
+    let r = Recording::detect(&six, None, None);
+    assert_eq!((r.lattice, r.heaping), (None, None));
+}
+
+#[test]
+fn extreme_values_give_no_lattice_and_no_panic() {
+    for x in [
+        vec![1e308, -1e308, 1e308],
+        vec![5e-324, 0.0, 5e-324],
+        vec![f64::MAX, f64::MAX, 0.0],
+    ] {
+        assert_eq!(Recording::detect(&x, None, None).lattice, None, "{x:?}");
+    }
+}
+
+#[test]
 fn few_ties_mean_no_lattice_note_even_on_a_lattice() {
     // 60 values to 0.01 over a spread of about 100: on a lattice, but almost no ties, so the
     // resolution does not matter to the fit (common practice, no source).
