@@ -172,3 +172,19 @@ fn heaping_on_whole_units_is_reported_with_a_resolution_set() {
     let note = element_text(&r.report, "recording-note").expect("a note in the report");
     assert!(note.contains("[data] resolution = 1"), "{note}");
 }
+
+#[test]
+fn the_demo_sample_is_found_on_its_lattice_of_a_tenth_without_heaping() {
+    // demo-data/generate.py rounds the invented wing lengths to 0.1 mm: 640 values, 123
+    // distinct, 69 of them (10.8%) on whole millimetres (counted from the file).
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-data/warbler-wings.csv");
+    let s = mixband::data::load_column(&path, "wing_mm", mixband::config::MissingPolicy::Error)
+        .unwrap();
+    let whole = s.values.iter().filter(|v| v.fract() == 0.0).count();
+    assert_eq!((s.values.len(), whole), (640, 69));
+    let r = mixband::data::Recording::detect(&s.values, None, None);
+    assert_eq!((r.n, r.distinct), (640, 123));
+    let l = r.lattice.expect("a lattice");
+    assert_eq!((l.step, l.offset, l.share), (0.1, 0.0, 1.0));
+    assert_eq!(r.heaping, None);
+}
