@@ -148,7 +148,9 @@ fn heaping_on_whole_units_is_reported_with_a_resolution_set() {
     // spacing), where the neighbouring tenths give about 7.5%.
     let r = sample("lattice-heaped", true, Some(0.1));
     assert!(
-        r.stderr.contains("heaping: ") && r.stderr.contains("lie on multiples of 1 where about"),
+        r.stderr.contains("heaping: ")
+            && r.stderr
+                .contains("lie on multiples of 1, where their neighbours"),
         "{}",
         r.stderr
     );

@@ -282,8 +282,8 @@ fn find_heaping(found: &Found, n: u64, sd: f64) -> Option<Heaping> {
                     Heaping {
                         step: tidy(coarse),
                         within: l.step,
-                        share: observed / n as f64,
-                        expected_share: expected / n as f64,
+                        share: tidy(observed / n as f64),
+                        expected_share: tidy(expected / n as f64),
                     },
                 ));
             }
@@ -365,8 +365,14 @@ impl Recording {
                  points; to treat each value as the cell it was rounded to, set `[data] resolution = {}`",
                 l.step
             )),
-            Some(r) if ((r - l.step) / l.step).abs() > 1e-6 => Some(format!(
-                "{found}, not on the resolution {r} in force; check `[data] resolution` (= {} fits the values)",
+            Some(r) if r < l.step * (1.0 - 1e-6) => Some(format!(
+                "{found}, coarser than the resolution {r} in force: the cells are narrower than the \
+                 rounding; set `[data] resolution = {}`",
+                l.step
+            )),
+            Some(r) if r > l.step * (1.0 + 1e-6) => Some(format!(
+                "{found}, finer than the resolution {r} in force: each cell holds its exact value, \
+                 at some loss of precision; `[data] resolution = {}` fits the values",
                 l.step
             )),
             Some(_) => None,
@@ -377,13 +383,15 @@ impl Recording {
     pub fn heaping_note(&self) -> Option<String> {
         let h = self.heaping.as_ref()?;
         Some(format!(
-            "heaping: {} of the values lie on multiples of {} where about {} would from the \
-             neighbouring values recorded to {}; those values were probably rounded more coarsely. \
-             A single resolution cannot describe both; `[data] resolution = {}` gives every value \
-             a cell that contains it, at some loss of precision",
+            "heaping: {} of the values lie on multiples of {}, where their neighbours on the {} \
+             lattice lead one to expect about {}; those values were probably rounded to {} rather \
+             than to {}. A single resolution cannot describe both steps; `[data] resolution = {}` \
+             gives every value a cell that contains its exact value, at some loss of precision",
             percent(h.share),
             h.step,
+            h.within,
             percent(h.expected_share),
+            h.step,
             h.within,
             h.step
         ))
@@ -398,13 +406,16 @@ impl Recording {
     }
 }
 
-/// A share as a percentage: whole percents, one decimal below 10%.
+/// A share as a percentage: whole percents (99% at most short of all), one decimal below
+/// 10%, and "under 0.1%" rather than 0.0%.
 fn percent(p: f64) -> String {
     let v = 100.0 * p;
-    if v >= 10.0 || v == 0.0 {
-        format!("{:.0}%", v.floor().min(if p < 1.0 { 99.0 } else { 100.0 }))
-    } else {
+    if v >= 9.95 {
+        format!("{:.0}%", v.round().min(if p < 1.0 { 99.0 } else { 100.0 }))
+    } else if v >= 0.05 || v == 0.0 {
         format!("{v:.1}%")
+    } else {
+        "under 0.1%".into()
     }
 }
 

@@ -151,7 +151,7 @@ fn heaping_on_whole_units_is_found_with_its_share() {
         h.expected_share
     );
     let note = r.heaping_note().unwrap();
-    assert!(note.contains("multiples of 1 ") && note.contains("recorded to 0.1"));
+    assert!(note.contains("multiples of 1, ") && note.contains("on the 0.1 lattice"));
     // Heaping is reported with a resolution set too; the lattice then matches it.
     let set = Recording::detect(&values, None, Some(0.1));
     assert!(set.heaping.is_some() && set.lattice_note().is_none());
@@ -287,9 +287,25 @@ fn notes_name_the_lattice_and_the_key() {
         set.treatment(),
         "values treated as recorded to 0.1: each stands for [x − 0.05, x + 0.05)"
     );
-    let wrong = Recording::detect(&values, None, Some(0.5));
-    assert!(wrong
+    let coarse = Recording::detect(&values, None, Some(0.5));
+    assert!(coarse
         .lattice_note()
         .unwrap()
-        .contains("not on the resolution 0.5"));
+        .contains("finer than the resolution 0.5"));
+    let fine = Recording::detect(&values, None, Some(0.01));
+    assert!(fine
+        .lattice_note()
+        .unwrap()
+        .contains("coarser than the resolution 0.01"));
+}
+
+#[test]
+fn percentages_read_as_written() {
+    // Exact formatting rules, no source.
+    assert_eq!(percent(1.0), "100%");
+    assert_eq!(percent(0.9996), "99%");
+    assert_eq!(percent(0.377), "38%");
+    assert_eq!(percent(0.0695), "7.0%");
+    assert_eq!(percent(0.0004), "under 0.1%");
+    assert_eq!(percent(0.0), "0.0%");
 }
