@@ -82,3 +82,24 @@ impl Manifest {
         self.chains.iter().map(|c| c.id).collect()
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const OLD: &str = r#"{"file": "/d.csv", "column": "y", "sha256": "ab", "n": 3, "dropped": 0,
+        "mean": 1.0, "sd": 0.5, "min": 0.5, "max": 1.5}"#;
+
+    #[test]
+    fn a_data_record_without_recording_still_reads_and_writes_the_same() {
+        // Manifests written before `recording` existed (exact: the field is optional).
+        let d: DataRecord = serde_json::from_str(OLD).unwrap();
+        assert_eq!(d.recording, None);
+        let back = serde_json::to_value(&d).unwrap();
+        assert!(back.get("recording").is_none());
+        let mut with = d.clone();
+        with.recording = Some(crate::data::Recording::detect(&[1.0, 1.0, 1.5], None, None));
+        let text = serde_json::to_string(&with).unwrap();
+        assert_eq!(serde_json::from_str::<DataRecord>(&text).unwrap(), with);
+    }
+}
