@@ -21,13 +21,15 @@
 //!
 //! Heaping. On a lattice of step r through 0, the coarser lattice of step m·r (m = 2, 4, 5,
 //! 10, 20, 50, 100, with m·r at most the sample's sd) is compared with its neighbours: the
-//! count on each coarse point is expected to be the mean count of the fine points within
-//! ⌈(m − 1)/2⌉ steps of it, as a smooth density would give. This is the comparison made by
-//! Whipple's index of age heaping (count on ages ending in 0 or 5 against a fifth of all
-//! ages in the range; from memory), made local so that the shape of the density does not
-//! count as heaping. Heaping is reported when the observed count is at least [`HEAP_RATIO`]
-//! times the expected one and the excess is at least [`HEAP_Z`] standard errors; among
-//! several coarse steps the one with the largest ratio is named.
+//! count on each coarse point is expected to be the mean count of the two nearest fine
+//! points on either side (one for m = 2), as a smooth density would give. This is the
+//! comparison made by Whipple's index of age heaping (count on ages ending in 0 or 5
+//! against a fifth of all ages in the range; from memory), made local so that the shape of
+//! the density does not count as heaping. Heaping is reported when the observed count is at
+//! least [`HEAP_RATIO`] times the expected one and the excess is at least [`HEAP_Z`]
+//! standard errors. Heaping on a step shows on all its multiples too, so each step is
+//! judged on its own points (multiples of 1 that are not multiples of 2, 5, 10; the halves
+//! of 0.5 that are not whole) and the finest heaped step is named.
 
 use std::collections::HashMap;
 
@@ -244,52 +246,66 @@ fn find_lattice(table: &[(f64, u64)], n: u64) -> Option<Found> {
     None
 }
 
-/// Heaping on multiples of m·step among values on the lattice `found` (through 0), for the
-/// multiple with the largest excess that passes [`HEAP_RATIO`] and [`HEAP_Z`].
+/// Count on the multiples of m (fine-lattice indices) that are not multiples of any of
+/// `coarser`, and the count expected there from the fine points within `hh` of each:
+/// (observed, expected, variance of expected).
+fn excess(points: &[(i64, u64)], m: i64, coarser: &[i64], hh: i64) -> (f64, f64, f64) {
+    let counted = |j0: i64| j0.rem_euclid(m) == 0 && coarser.iter().all(|&c| j0.rem_euclid(c) != 0);
+    let (mut observed, mut expected, mut var) = (0.0, 0.0, 0.0);
+    for &(j, c) in points {
+        let rho = j.rem_euclid(m);
+        let c = c as f64;
+        if rho == 0 {
+            if counted(j) {
+                observed += c;
+            }
+            continue;
+        }
+        // The counted coarse points that have this fine point among their 2·hh neighbours.
+        let uses =
+            (rho <= hh && counted(j - rho)) as i64 + (m - rho <= hh && counted(j + m - rho)) as i64;
+        let w = uses as f64 / (2 * hh) as f64;
+        expected += w * c;
+        var += w * w * c;
+    }
+    (observed, expected, var)
+}
+
+/// Heaping among values on the lattice `found` (through 0): the finest multiple m·step
+/// whose own points (those not on a coarser multiple tried) hold an excess that passes
+/// [`HEAP_RATIO`] and [`HEAP_Z`]. Heaping on whole units shows on every multiple of 1 but
+/// not on the halves, so it is named as heaping on 1, not on 0.5 or 10.
 fn find_heaping(found: &Found, n: u64, sd: f64) -> Option<Heaping> {
     let l = &found.lattice;
     if l.offset != 0.0 {
         return None;
     }
-    let mut best: Option<(f64, Heaping)> = None;
     for m in HEAP_MULTIPLES {
         let coarse = l.step * m as f64;
         if coarse > sd {
-            continue;
+            break;
         }
-        let h = m / 2; // ⌈(m − 1)/2⌉
-        let (mut observed, mut expected, mut var_expected) = (0.0, 0.0, 0.0);
-        for &(j, c) in &found.points {
-            let rho = j.rem_euclid(m);
-            let c = c as f64;
-            if rho == 0 {
-                observed += c;
-                continue;
-            }
-            // How many coarse points have this fine point among their 2h neighbours.
-            let uses = (rho <= h) as i64 + (m - rho <= h) as i64;
-            let w = uses as f64 / (2 * h) as f64;
-            expected += w * c;
-            var_expected += w * w * c;
-        }
-        let ratio = observed / expected;
-        let z = (observed - expected) / (expected + var_expected).max(1.0).sqrt();
-        if expected > 0.0 && ratio >= HEAP_RATIO && z >= HEAP_Z {
-            let better = best.as_ref().is_none_or(|(r, _)| ratio > *r);
-            if better {
-                best = Some((
-                    ratio,
-                    Heaping {
-                        step: tidy(coarse),
-                        within: l.step,
-                        share: tidy(observed / n as f64),
-                        expected_share: tidy(expected / n as f64),
-                    },
-                ));
-            }
+        // Neighbours: the nearest two fine points on each side (one when m = 2), close
+        // enough that a smooth density is nearly level across them.
+        let hh = (m / 2).min(2);
+        let coarser: Vec<i64> = HEAP_MULTIPLES
+            .iter()
+            .copied()
+            .filter(|&c| c > m && c % m == 0)
+            .collect();
+        let (observed, expected, var) = excess(&found.points, m, &coarser, hh);
+        let z = (observed - expected) / (expected + var).max(1.0).sqrt();
+        if expected > 0.0 && observed >= HEAP_RATIO * expected && z >= HEAP_Z {
+            let (all, all_expected, _) = excess(&found.points, m, &[], hh);
+            return Some(Heaping {
+                step: tidy(coarse),
+                within: l.step,
+                share: tidy(all / n as f64),
+                expected_share: tidy(all_expected / n as f64),
+            });
         }
     }
-    best.map(|b| b.1)
+    None
 }
 
 /// `x` with the digits of a product of decimal numbers cleaned (0.1 · 5 is 0.5).

@@ -309,3 +309,57 @@ fn percentages_read_as_written() {
     assert_eq!(percent(0.0004), "under 0.1%");
     assert_eq!(percent(0.0), "0.0%");
 }
+
+/// `x` with a share `p` of the values rounded to `coarse` and the rest to `fine`, printed
+/// with `decimals`.
+fn heaped(x: &[f64], p: f64, coarse: f64, fine: f64, decimals: usize, seed: u64) -> Vec<f64> {
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    x.iter()
+        .map(|&v| {
+            let s = if rand::Rng::random::<f64>(&mut rng) < p {
+                coarse
+            } else {
+                fine
+            };
+            format!("{:.decimals$}", (v / s).round() * s)
+                .parse()
+                .unwrap()
+        })
+        .collect()
+}
+
+#[test]
+fn the_finest_heaped_step_is_named() {
+    // Construction facts: heaping on halves (digits 0 and 5) is named 0.5, not 1; heaping
+    // on tens among whole years is named 10, not 5 or 2.
+    let halves = heaped(&normal(5000, 50.0, 5.0, 101), 0.3, 0.5, 0.1, 1, 102);
+    let h = Recording::detect(&halves, None, None)
+        .heaping
+        .expect("heaping");
+    assert_eq!((h.step, h.within), (0.5, 0.1));
+    let tens = heaped(&normal(5000, 45.0, 15.0, 103), 0.3, 10.0, 1.0, 0, 104);
+    let h = Recording::detect(&tens, None, None)
+        .heaping
+        .expect("heaping");
+    assert_eq!((h.step, h.within), (10.0, 1.0));
+    // 30% on tens + 70%·10% = 37% of the values lie on multiples of 10.
+    assert!((0.34..0.40).contains(&h.share), "share {}", h.share);
+}
+
+#[test]
+fn narrow_peaks_on_whole_units_are_not_heaping() {
+    // A mixture of eleven normals with sd 0.35 centred on 40, 42, …, 60, recorded to 0.1:
+    // the density peaks on whole units, smoothly, and nothing is heaped (common practice,
+    // no source: the nearest neighbours are within 0.2 of the peak, where the density is
+    // within 15% of it).
+    let mut rng = ChaCha8Rng::seed_from_u64(111);
+    let x: Vec<f64> = (0..6000)
+        .map(|i| {
+            let centre = 40.0 + 2.0 * (i % 11) as f64;
+            Normal::new(centre, 0.35).unwrap().sample(&mut rng)
+        })
+        .collect();
+    let r = Recording::detect(&printed(&x, 0.1, 1), None, None);
+    assert!(close(r.lattice.as_ref().unwrap().step, 0.1));
+    assert_eq!(r.heaping, None);
+}
