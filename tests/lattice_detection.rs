@@ -43,6 +43,11 @@ struct Ran {
 
 /// Runs `mixband sample` (2 chains, 40 draws: the note does not depend on the draws).
 fn sample(tag: &str, heaped: bool, resolution: Option<f64>) -> Ran {
+    sample_then(tag, heaped, resolution, |_| {})
+}
+
+/// [`sample`], then `after(run directory)` before the outputs are read.
+fn sample_then(tag: &str, heaped: bool, resolution: Option<f64>, after: impl Fn(&Path)) -> Ran {
     let dir = scratch_dir(tag);
     std::fs::write(dir.join("data.csv"), csv(heaped)).unwrap();
     let res = resolution.map_or(String::new(), |r| format!("resolution = {r}\n"));
@@ -68,6 +73,7 @@ fn sample(tag: &str, heaped: bool, resolution: Option<f64>) -> Ran {
         "sample failed: {stderr}"
     );
     let read = |p: &Path| std::fs::read_to_string(p).unwrap();
+    after(&run);
     let ran = Ran {
         stderr,
         manifest: serde_json::from_str(&read(&run.join("manifest.json"))).unwrap(),
@@ -189,4 +195,28 @@ fn the_demo_sample_is_found_on_its_lattice_of_a_tenth_without_heaping() {
     let l = r.lattice.expect("a lattice");
     assert_eq!((l.step, l.offset, l.share), (0.1, 0.0, 1.0));
     assert_eq!(r.heaping, None);
+}
+
+#[test]
+fn extend_prints_the_note_and_records_it_in_a_manifest_from_before_it_existed() {
+    let r = sample_then("lattice-extend", false, None, |run| {
+        // A manifest written before `data.recording` existed.
+        let path = run.join("manifest.json");
+        let mut m: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(&path).unwrap()).unwrap();
+        m["data"].as_object_mut().unwrap().remove("recording");
+        std::fs::write(&path, serde_json::to_vec_pretty(&m).unwrap()).unwrap();
+        let out = Command::new(env!("CARGO_BIN_EXE_mixband"))
+            .args(["extend", "-q", "--no-report", "--draws", "5"])
+            .arg(run)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(
+            matches!(out.status.code(), Some(0 | 3)),
+            "extend failed: {err}"
+        );
+        assert!(err.contains("`[data] resolution = 0.1`"), "{err}");
+    });
+    assert_eq!(r.manifest["data"]["recording"]["lattice"]["step"], 0.1);
 }
