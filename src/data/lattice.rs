@@ -154,7 +154,7 @@ fn gcd(a: i64, b: i64) -> i64 {
     a as i64
 }
 
-/// Shares of the observations (weighted) and of the distinct values among `on` of `all`.
+/// Shares of the `n` observations and of the `distinct` values that `on` holds.
 fn shares(on: &[(i64, u64)], n: u64, distinct: usize) -> (f64, f64) {
     let w: u64 = on.iter().map(|p| p.1).sum();
     (w as f64 / n as f64, on.len() as f64 / distinct as f64)
