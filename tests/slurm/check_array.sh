@@ -2,8 +2,10 @@
 # Checks docs/scaling.md's SLURM job array on a real scheduler: a one-node Slurm cluster on
 # this machine (Debian's slurm-wlm and munge, installed with apt-get when missing) runs the
 # doc's job-array block as written, the doc's merge block joins the parts, and the joined
-# bands.csv, cdf.csv, summary.json and draw tables must equal, byte for byte, those of the
-# same config sampled as one job (`mixband sample`). Exit 0 when they do, non-zero otherwise.
+# bands.csv, cdf.csv, summary.json (and bands.json, diagnostics.json, checks.json, draw
+# tables, chain states and figures) must equal, byte for byte, those of the same config
+# sampled as one job (`mixband sample`), and both reports must give the same verdict.
+# Exit 0 when they do, non-zero otherwise.
 #
 #   bash tests/slurm/check_array.sh          # builds target/release/mixband if needed
 #   MIXBAND_BIN=/path/to/mixband bash tests/slurm/check_array.sh
@@ -218,13 +220,17 @@ done
 say "merge exited $merge_rc, single run exited $single_rc; $(tail -n 1 "$work/log/merge.log")"
 
 # config.toml differs by design (the joined one says so in its first line), manifest.json
-# by the seconds each chain took; merge writes no figures and no report.html.
+# by the seconds each chain took, report.html by those, the run's name and the config text.
 files=(bands.csv cdf.csv summary.json bands.json diagnostics.json checks.json)
 for i in 1 2 3 4 5 6 7 8; do files+=("draws/chain-$i.csv" "state/chain-$i.json"); done
+for f in single/plots/*.svg; do files+=("plots/${f##*/}"); done
 for f in "${files[@]}"; do
   [ -s "single/$f" ] || die "single/$f is missing or empty"
   cmp "run/$f" "single/$f" || die "run/$f (array + merge) differs from single/$f"
 done
+verdict() { grep -o 'id="verdict"><strong>[A-Z ]*' "$1/report.html" || echo "no verdict in $1/report.html"; }
+[ "$(verdict run)" = "$(verdict single)" ] ||
+  die "run/report.html says '$(verdict run)', single/report.html '$(verdict single)'"
 say "PASS: bands.csv, cdf.csv, summary.json (and bands.json, diagnostics.json, checks.json," \
-  "draws/chain-1..8.csv, state/chain-1..8.json) of the merged array equal the single run's" \
-  "byte for byte"
+  "draws/chain-1..8.csv, state/chain-1..8.json, plots/*.svg) of the merged array equal the" \
+  "single run's byte for byte; both reports say $(verdict run | sed 's/.*<strong>//')"
