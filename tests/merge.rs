@@ -97,6 +97,13 @@ fn four_chains_equal_two_plus_two_merged() {
             "{f}"
         );
     }
+    // The joined run's report is its own, written by merge, not part a's copied over (which
+    // shows chains 1 and 2 and their verdict): `mixband report` writes the same page again.
+    let page = std::fs::read(joined.join("report.html")).unwrap();
+    assert_ne!(page, std::fs::read(a.join("report.html")).unwrap());
+    assert!(joined.join("plots/density.svg").exists());
+    assert_eq!(cli(&["report", s(&joined)]), 0);
+    assert_eq!(page, std::fs::read(joined.join("report.html")).unwrap());
     // The joined config covers every chain, so it carries no chain_ids.
     let text = std::fs::read_to_string(joined.join("config.toml")).unwrap();
     assert!(!text.contains("chain_ids"), "{text}");

@@ -6,8 +6,8 @@ use std::path::{Path, PathBuf};
 use crate::error::Result;
 use crate::run::merge_job;
 
-pub(super) fn merge(runs: &[PathBuf], out: &Path) -> Result<i32> {
-    let result = merge_job(runs, out)?;
+pub(super) fn merge(runs: &[PathBuf], out: &Path, no_report: bool) -> Result<i32> {
+    let result = merge_job(runs, out, !no_report)?;
     if let Some(r) = &result.check {
         println!("mixband: model check: {}", r.verdict.summary);
     }
@@ -22,5 +22,8 @@ pub(super) fn merge(runs: &[PathBuf], out: &Path) -> Result<i32> {
         ids.join(", "),
         out.display()
     );
+    if let Some(page) = &result.report_html {
+        println!("mixband: report in {}", page.display());
+    }
     Ok(super::diagnose::print_verdict(&result.diagnostics))
 }

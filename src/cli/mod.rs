@@ -80,6 +80,9 @@ pub enum Command {
         /// Run directory to create.
         #[arg(long)]
         out: PathBuf,
+        /// Skip the figures (RUN/plots/) and RUN/report.html.
+        #[arg(long)]
+        no_report: bool,
     },
     /// Run the built-in demo (invented wing-length data) end to end.
     #[command(after_help = EXIT_CODES)]
@@ -192,7 +195,11 @@ pub fn run(cli: Cli) -> Result<i32> {
             chains,
             opts,
         } => sample::sample(&config, &out, force, chains.as_deref(), &opts),
-        Command::Merge { runs, out } => merge::merge(&runs, &out),
+        Command::Merge {
+            runs,
+            out,
+            no_report,
+        } => merge::merge(&runs, &out, no_report),
         Command::Demo { out, force, opts } => demo::demo(&out, force, &opts),
         Command::Resume { run, opts } => sample::resume(&run, None, &opts),
         Command::Extend { run, draws, opts } => sample::resume(&run, Some(draws), &opts),

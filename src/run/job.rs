@@ -318,8 +318,10 @@ pub fn check_run_dir(run: &Path, threads: usize) -> Result<CheckReport> {
 }
 
 /// Joins runs that sampled disjoint chains of one config into `out`
-/// ([`super::merge_runs`]), then summarises the joined run as a finished job does.
-pub fn merge_job(runs: &[PathBuf], out: &Path) -> Result<RunResult> {
+/// ([`super::merge_runs`]), then summarises the joined run as a finished job does, and
+/// with `report` writes its figures and report.html (never a part's: a part's report
+/// shows its own chains and verdict).
+pub fn merge_job(runs: &[PathBuf], out: &Path, report: bool) -> Result<RunResult> {
     let (manifest, _) = super::merge_runs(runs, out)?;
     let layout = RunLayout::new(out);
     // The summaries need the data only for the resolved config's data-dependent settings;
@@ -327,5 +329,9 @@ pub fn merge_job(runs: &[PathBuf], out: &Path) -> Result<RunResult> {
     let (_, prep) = open_unchanged(&layout, "the parts were sampled")?;
     let mut result = summarise_run(&layout, &prep)?;
     result.manifest = manifest;
+    if report {
+        let page = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
+        result.report_html = Some(page);
+    }
     Ok(result)
 }

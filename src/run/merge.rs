@@ -10,12 +10,16 @@ use crate::error::{Error, Result};
 use crate::store::{write_atomic, Manifest, RunLayout, RunStatus};
 
 /// Top-level files of a run directory that the merge writes itself.
-const OWN_FILES: [&str; 5] = [
+const OWN_FILES: [&str; 9] = [
     "manifest.json",
     "config.toml",
     "bands.csv",
     "bands.json",
     "diagnostics.json",
+    "cdf.csv",
+    "summary.json",
+    "checks.json",
+    "report.html",
 ];
 
 /// A config's JSON without `[sampler] chain_ids`, for comparing parts of one run.
