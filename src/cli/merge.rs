@@ -8,7 +8,7 @@ use crate::run::{merge_runs, Prepared};
 use crate::store::RunLayout;
 
 pub(super) fn merge(runs: &[PathBuf], out: &Path) -> Result<i32> {
-    let (manifest, _) = merge_runs(runs, out)?;
+    let (manifest, _, _lock) = merge_runs(runs, out)?;
     let layout = RunLayout::new(out);
     // The summaries need the data only for the resolved config's data-dependent settings;
     // its hash must still be the one every part sampled.
