@@ -146,6 +146,8 @@ fn a_held_lock_refuses_every_writer_and_changes_nothing() {
     drop(lock);
     assert_ok(&run(&s, &["extend", "run", "--draws", "5"]));
     assert!(!s.path("run").join(LOCK_FILE).exists());
+    assert_ok(&run(&s, &["sample", "c.toml", "--out", "run", "--force"]));
+    assert!(!s.path("run").join(LOCK_FILE).exists());
 }
 
 /// Kills the child if the test fails before waiting for it.

@@ -70,8 +70,9 @@ fn has_files(dir: &Path) -> Result<bool> {
 }
 
 /// Checks that a fresh run may be written into `dir`: absent, empty, or (with `force`) an
-/// earlier mixband run. Returns whether there is an earlier run to clear.
-fn check_target(dir: &Path, force: bool) -> Result<bool> {
+/// earlier mixband run. Returns whether there is an earlier run to clear. `locked`: this
+/// process holds the lock already.
+fn check_target(dir: &Path, force: bool, locked: bool) -> Result<bool> {
     if dir.exists() && !dir.is_dir() {
         return Err(Error::input(format!(
             "--out {} exists and is not a directory; choose another --out",
@@ -82,7 +83,9 @@ fn check_target(dir: &Path, force: bool) -> Result<bool> {
         return Ok(false);
     }
     // A live writer is named before any other complaint.
-    RunLock::check_free(dir)?;
+    if !locked {
+        RunLock::check_free(dir)?;
+    }
     if !force {
         return Err(Error::input(format!(
             "{} exists and is not empty; choose another --out or pass --force to replace an earlier run",
@@ -103,10 +106,10 @@ fn check_target(dir: &Path, force: bool) -> Result<bool> {
 /// in between); an earlier run is cleared only under the lock, so a refused `--force`
 /// deletes nothing.
 fn claim_directory(dir: &Path, force: bool) -> Result<RunLock> {
-    check_target(dir, force)?;
+    check_target(dir, force, false)?;
     std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
     let lock = RunLock::acquire(dir, if force { "sample --force" } else { "sample" })?;
-    if check_target(dir, force)? {
+    if check_target(dir, force, true)? {
         for entry in std::fs::read_dir(dir).map_err(|e| Error::io(dir, e))? {
             let entry = entry.map_err(|e| Error::io(dir, e))?;
             if entry.file_name() == LOCK_FILE {

@@ -114,7 +114,7 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
     ids.sort_unstable();
 
     // Checked before anything is created, and again under the lock.
-    let check_out = || -> Result<()> {
+    let check_out = |locked: bool| -> Result<()> {
         if out.exists() && !out.is_dir() {
             return Err(Error::input(format!(
                 "--out {} exists and is not a directory; choose another --out",
@@ -125,7 +125,9 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
             let mut entries = std::fs::read_dir(out).map_err(|e| Error::io(out, e))?;
             let non_empty = entries.any(|e| e.map_or(true, |e| e.file_name() != LOCK_FILE));
             if non_empty {
-                RunLock::check_free(out)?;
+                if !locked {
+                    RunLock::check_free(out)?;
+                }
                 return Err(Error::input(format!(
                     "{} exists and is not empty; choose another --out",
                     out.display()
@@ -134,10 +136,10 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
         }
         Ok(())
     };
-    check_out()?;
+    check_out(false)?;
     std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
     let lock = RunLock::acquire(out, "merge")?;
-    check_out()?;
+    check_out(true)?;
     let layout = RunLayout::new(out);
     for d in [layout.draws_dir(), layout.state_dir()] {
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
