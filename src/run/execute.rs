@@ -158,7 +158,6 @@ pub fn execute(
         draws: cfg.draws as u64,
         thin: cfg.thin as u64,
     };
-    let config_toml = cfg.to_toml()?;
     let config_json = serde_json::to_value(cfg.to_raw())
         .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
     let lock;
@@ -209,7 +208,11 @@ pub fn execute(
             m
         }
     };
-    write_atomic(&layout.config(), config_toml.as_bytes())?;
+    // config.toml names the data relative to the run directory where it can (a moved
+    // project still resumes); the manifest keeps the absolute path the run was made with.
+    let mut for_file = cfg.clone();
+    for_file.data_file_text = super::data_path::for_run_dir(&cfg.data_file_text, dir);
+    write_atomic(&layout.config(), for_file.to_toml()?.as_bytes())?;
     manifest.write(&layout.manifest())?;
 
     let units = Units {

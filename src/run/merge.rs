@@ -165,7 +165,11 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
     }
     records.sort_by_key(|c| c.id);
 
-    let (raw, _) = parse_config_file(&first_layout.config())?;
+    let (mut raw, _) = parse_config_file(&first_layout.config())?;
+    // A data path relative to the first part's directory is re-expressed from `out`.
+    if let Some(file) = raw.data.as_mut().and_then(|d| d.file.as_mut()) {
+        *file = super::data_path::rebase(file, &first_layout.root, out);
+    }
     let raw = merged_config(raw, &ids);
     let body = toml::to_string(&raw)
         .map_err(|e| Error::internal(format!("cannot write merged config: {e}")))?;
@@ -179,13 +183,22 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
             .join(", ")
     );
     write_atomic(&layout.config(), text.as_bytes())?;
+    // The manifest records the data path as the parts' manifests do (absolute).
+    let mut manifest_raw = raw.clone();
+    let recorded = first.config.get("data").and_then(|d| d.get("file"));
+    if let (Some(d), Some(f)) = (
+        manifest_raw.data.as_mut(),
+        recorded.and_then(|f| f.as_str()),
+    ) {
+        d.file = Some(f.to_string());
+    }
     let manifest = Manifest {
         tool: first.tool.clone(),
         version: first.version.clone(),
         status: RunStatus::Complete,
         seed: first.seed,
         data: first.data.clone(),
-        config: serde_json::to_value(&raw)
+        config: serde_json::to_value(&manifest_raw)
             .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?,
         chains: records,
         started_unix: parts.iter().map(|p| p.2.started_unix).min().unwrap_or(0),

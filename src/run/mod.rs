@@ -1,6 +1,7 @@
 //! Running the whole job: prepare (config + data), sample every chain into the store,
 //! then summarise. The command line is a thin layer over these functions.
 
+mod data_path;
 mod execute;
 mod in_memory;
 mod merge;
@@ -8,6 +9,7 @@ mod outputs;
 mod prepare;
 mod summarise;
 
+pub use data_path::{for_run_dir, rebase, relative_path};
 pub use execute::{execute, ExecOptions, Mode, RunOutcome};
 pub use in_memory::summarise_in_memory;
 pub use merge::merge_runs;

@@ -149,9 +149,10 @@ impl Prepared {
             config.grid_from = given.from.unwrap_or(on_x.grid_from.max(0.0));
             config.grid_to = given.to.unwrap_or(on_x.grid_to);
         }
-        // RUN/config.toml must find the data from inside the run directory (sample it again,
-        // `bands`, `resume`, `extend`), so it records the absolute path, not the path as
-        // written relative to the original config's folder.
+        // The absolute path, not the path as written relative to the original config's
+        // folder: RUN/config.toml must find the data from inside the run directory, and
+        // `execute` writes it there relative to that directory where it can
+        // (run/data_path.rs).
         config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let cells = config.resolution.map(|r| {
