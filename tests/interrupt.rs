@@ -218,7 +218,8 @@ fn half_written_last_row_is_ignored_by_bands() {
     let s = Scratch::new("interrupt_half_row");
     let run = s.path("run");
     copy_dir(reference, &run);
-    // The copied config names the data by absolute path, so `bands` works from the copy.
+    // The copy's config.toml names the data relative to the reference run, which leads
+    // nowhere from here: the manifest's absolute path is used, so `bands` works.
     let mut f = std::fs::OpenOptions::new()
         .append(true)
         .open(run.join("draws/chain-2.csv"))

@@ -70,8 +70,8 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
             dir.display()
         )));
     }
-    // The data as RUN/config.toml names it (an absolute path, or a copy inside the run
-    // directory); failing that, the absolute path recorded in the manifest.
+    // The data as RUN/config.toml names it (relative to the run directory, absolute, or a
+    // copy inside it); failing that, the absolute path recorded in the manifest.
     let prep = match Prepared::from_config_file(&cfg_path) {
         Ok(p) => p,
         Err(first) => {

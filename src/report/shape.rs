@@ -10,6 +10,16 @@ use serde_json::Value;
 use super::encode::html_escape;
 use super::html::sig4;
 
+/// A number of summary.json for a table cell: 4 significant digits, the words
+/// "not finite" where summary.json has them, a dash where the value is missing.
+fn number_cell(v: &Value) -> String {
+    match v.as_f64() {
+        Some(x) => sig4(x),
+        None if v.as_str() == Some(crate::summary::NOT_FINITE) => crate::summary::NOT_FINITE.into(),
+        None => "—".into(),
+    }
+}
+
 fn interval_cells(post: &Value, level: f64) -> String {
     let iv = post["intervals"]
         .as_array()
@@ -17,8 +27,8 @@ fn interval_cells(post: &Value, level: f64) -> String {
     match iv {
         Some(i) => format!(
             "{} to {}",
-            sig4(i["lower"].as_f64().unwrap_or(f64::NAN)),
-            sig4(i["upper"].as_f64().unwrap_or(f64::NAN))
+            number_cell(&i["lower"]),
+            number_cell(&i["upper"])
         ),
         None => "—".into(),
     }
@@ -74,8 +84,8 @@ pub fn shape_section(out: &mut String, summary: Option<&Value>) {
         let _ = write!(
             out,
             "<tr><td>{name}</td><td>{}</td><td>{}</td><td>{}</td></tr>",
-            sig4(post["mean"].as_f64().unwrap_or(f64::NAN)),
-            sig4(post["sd"].as_f64().unwrap_or(f64::NAN)),
+            number_cell(&post["mean"]),
+            number_cell(&post["sd"]),
             interval_cells(post, level)
         );
     };

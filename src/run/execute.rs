@@ -3,11 +3,12 @@
 //! Chain i always uses the streams of (seed, i), so the draws do not depend on the number
 //! of threads or on which chains run beside it (`[sampler] chain_ids` runs a subset).
 //! Threads go to chains first; spare threads split each chain's allocation by blocks. A fresh run refuses to write into a
-//! non-empty directory unless forced; resume and extend continue from the checkpoints.
+//! non-empty directory unless forced; resume and extend continue from the checkpoints. One
+//! process at a time writes a run directory (its lock, `store::RunLock`).
 
 use std::path::Path;
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
-use std::sync::Mutex;
+use std::sync::{Arc, Mutex};
 use std::time::Instant;
 
 use indicatif::{MultiProgress, ProgressBar, ProgressDrawTarget, ProgressStyle};
@@ -20,7 +21,8 @@ use crate::sampler::{
     ChainStop, Checkpoint, SweepOptions,
 };
 use crate::store::{
-    read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunStatus, Units,
+    read_checkpoint, write_atomic, ChainRecord, ChainWriter, Manifest, RunLayout, RunLock,
+    RunStatus, Units, LOCK_FILE,
 };
 
 /// What kind of sampling call this is.
@@ -47,49 +49,96 @@ pub struct ExecOptions<'a> {
 pub struct RunOutcome {
     pub manifest: Manifest,
     pub interrupted: bool,
+    /// The run directory's writer lock, still held: whoever writes the summaries after
+    /// sampling keeps the outcome (or this field) alive until they are written, and the
+    /// lock is released when the last clone is dropped.
+    pub lock: Arc<RunLock>,
 }
 
 /// How one chain's thread ended: its stop, draws written and seconds spent.
 type ChainResult = Result<(ChainStop, u64, f64)>;
 
-/// Prepares the directory for a fresh run.
-fn claim_directory(dir: &Path, force: bool) -> Result<()> {
+/// Whether `dir` holds anything besides its lock file.
+fn has_files(dir: &Path) -> Result<bool> {
+    for entry in std::fs::read_dir(dir).map_err(|e| Error::io(dir, e))? {
+        let entry = entry.map_err(|e| Error::io(dir, e))?;
+        if entry.file_name() != LOCK_FILE {
+            return Ok(true);
+        }
+    }
+    Ok(false)
+}
+
+/// Checks that a fresh run may be written into `dir`: absent, empty, or (with `force`) an
+/// earlier mixband run. Returns whether there is an earlier run to clear. `locked`: this
+/// process holds the lock already.
+fn check_target(dir: &Path, force: bool, locked: bool) -> Result<bool> {
     if dir.exists() && !dir.is_dir() {
         return Err(Error::input(format!(
             "--out {} exists and is not a directory; choose another --out",
             dir.display()
         )));
     }
-    if dir.exists() {
-        let non_empty = std::fs::read_dir(dir)
-            .map_err(|e| Error::io(dir, e))?
-            .next()
-            .is_some();
-        if non_empty {
-            if !force {
-                return Err(Error::input(format!(
-                    "{} exists and is not empty; choose another --out or pass --force to replace an earlier run",
-                    dir.display()
-                )));
+    if !dir.exists() || !has_files(dir)? {
+        return Ok(false);
+    }
+    // A live writer is named before any other complaint.
+    if !locked {
+        RunLock::check_free(dir)?;
+    }
+    if !force {
+        return Err(Error::input(format!(
+            "{} exists and is not empty; choose another --out or pass --force to replace an earlier run",
+            dir.display()
+        )));
+    }
+    if !RunLayout::new(dir).manifest().exists() {
+        return Err(Error::input(format!(
+            "{} is not a mixband run directory (no manifest.json); refusing to replace it even with --force",
+            dir.display()
+        )));
+    }
+    Ok(true)
+}
+
+/// Prepares the directory for a fresh run and takes its lock. The checks are made before
+/// anything is created and again once the lock is held (another writer may have finished
+/// in between); an earlier run is cleared only under the lock, so a refused `--force`
+/// deletes nothing.
+fn claim_directory(dir: &Path, force: bool) -> Result<RunLock> {
+    check_target(dir, force, false)?;
+    std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+    let lock = RunLock::acquire(dir, if force { "sample --force" } else { "sample" })?;
+    if check_target(dir, force, true)? {
+        for entry in std::fs::read_dir(dir).map_err(|e| Error::io(dir, e))? {
+            let entry = entry.map_err(|e| Error::io(dir, e))?;
+            if entry.file_name() == LOCK_FILE {
+                continue;
             }
-            if !RunLayout::new(dir).manifest().exists() {
-                return Err(Error::input(format!(
-                    "{} is not a mixband run directory (no manifest.json); refusing to replace it even with --force",
-                    dir.display()
-                )));
+            let p = entry.path();
+            let kind = entry.file_type().map_err(|e| Error::io(&p, e))?;
+            if kind.is_dir() {
+                std::fs::remove_dir_all(&p)
+            } else {
+                std::fs::remove_file(&p)
             }
-            std::fs::remove_dir_all(dir).map_err(|e| Error::io(dir, e))?;
+            .map_err(|e| Error::io(&p, e))?;
         }
     }
     let layout = RunLayout::new(dir);
-    for d in [layout.root.clone(), layout.draws_dir(), layout.state_dir()] {
+    for d in [layout.draws_dir(), layout.state_dir()] {
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
     }
-    Ok(())
+    Ok(lock)
 }
 
 /// Samples the run described by `prep` into `dir`. `extra_files` (name, bytes) are
 /// written into a fresh run directory beside the config (the demo's data).
+///
+/// The directory's writer lock ([`RunLock`]) is taken before anything in it is changed,
+/// refusing (naming the holder) when another live process writes it, and is handed back
+/// in [`RunOutcome::lock`] so the caller's summaries are written under it too; on an
+/// error it is released before returning.
 pub fn execute(
     prep: &Prepared,
     dir: &Path,
@@ -109,12 +158,12 @@ pub fn execute(
         draws: cfg.draws as u64,
         thin: cfg.thin as u64,
     };
-    let config_toml = cfg.to_toml()?;
     let config_json = serde_json::to_value(cfg.to_raw())
         .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?;
+    let lock;
     let mut manifest = match mode {
         Mode::Fresh { force } => {
-            claim_directory(dir, force)?;
+            lock = claim_directory(dir, force)?;
             for (name, bytes) in extra_files {
                 write_atomic(&layout.root.join(name), bytes)?;
             }
@@ -143,6 +192,7 @@ pub fn execute(
             }
         }
         Mode::Resume => {
+            lock = RunLock::acquire(dir, "continue")?;
             let mut m = Manifest::read(&layout.manifest())?;
             if m.data.sha256 != prep.record.sha256 {
                 return Err(Error::input(format!(
@@ -159,7 +209,11 @@ pub fn execute(
             m
         }
     };
-    write_atomic(&layout.config(), config_toml.as_bytes())?;
+    // config.toml names the data relative to the run directory where it can (a moved
+    // project still resumes); the manifest keeps the absolute path the run was made with.
+    let mut for_file = cfg.clone();
+    for_file.data_file_text = super::data_path::for_run_dir(&cfg.data_file_text, dir);
+    write_atomic(&layout.config(), for_file.to_toml()?.as_bytes())?;
     manifest.write(&layout.manifest())?;
 
     let units = Units {
@@ -263,6 +317,7 @@ pub fn execute(
     Ok(RunOutcome {
         manifest,
         interrupted,
+        lock: Arc::new(lock),
     })
 }
 

@@ -77,6 +77,8 @@ pub fn run_job(
     if opts.exec.threads == 0 {
         return Err(Error::input("--threads must be at least 1"));
     }
+    // `outcome.lock` keeps the run directory locked until this function returns, after
+    // the summaries and the report are written.
     let outcome = execute(prep, out, mode, opts.exec, extra_files)?;
     if outcome.interrupted {
         let left = outcome
@@ -322,7 +324,8 @@ pub fn check_run_dir(run: &Path, threads: usize) -> Result<CheckReport> {
 /// with `report` writes its figures and report.html (never a part's: a part's report
 /// shows its own chains and verdict).
 pub fn merge_job(runs: &[PathBuf], out: &Path, report: bool) -> Result<RunResult> {
-    let (manifest, _) = super::merge_runs(runs, out)?;
+    // The joined run stays locked until its summaries and report are written.
+    let (manifest, _, _lock) = super::merge_runs(runs, out)?;
     let layout = RunLayout::new(out);
     // The summaries need the data only for the resolved config's data-dependent settings;
     // its hash must still be the one every part sampled.

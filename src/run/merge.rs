@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 
 use crate::config::{parse_config_file, RawConfig};
 use crate::error::{Error, Result};
-use crate::store::{write_atomic, Manifest, RunLayout, RunStatus};
+use crate::store::{write_atomic, Manifest, RunLayout, RunLock, RunStatus, LOCK_FILE};
 
 /// Top-level files of a run directory that the merge writes itself.
 const OWN_FILES: [&str; 9] = [
@@ -54,8 +54,10 @@ fn merged_config(mut raw: RawConfig, ids: &[u64]) -> RawConfig {
 /// Checks that `runs` are complete parts of one run (same tool version, config apart from
 /// chain ids, data hash; disjoint chain ids) and writes their union into `out`, which must
 /// not exist or be empty. Returns the joined manifest and resolved config (for the
-/// summaries, which the caller writes).
-pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig)> {
+/// summaries, which the caller writes) and `out`'s writer lock, which the caller holds
+/// until the summaries are written. Refuses, naming the holder, when another live process
+/// holds `out`'s lock.
+pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, RunLock)> {
     if runs.len() < 2 {
         return Err(Error::input("merge needs at least two run directories"));
     }
@@ -115,20 +117,35 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig)>
     }
     ids.sort_unstable();
 
-    if out.exists() {
-        let non_empty = std::fs::read_dir(out)
-            .map_err(|e| Error::io(out, e))?
-            .next()
-            .is_some();
-        if non_empty {
+    // Checked before anything is created, and again under the lock.
+    let check_out = |locked: bool| -> Result<()> {
+        if out.exists() && !out.is_dir() {
             return Err(Error::input(format!(
-                "{} exists and is not empty; choose another --out",
+                "--out {} exists and is not a directory; choose another --out",
                 out.display()
             )));
         }
-    }
+        if out.exists() {
+            let mut entries = std::fs::read_dir(out).map_err(|e| Error::io(out, e))?;
+            let non_empty = entries.any(|e| e.map_or(true, |e| e.file_name() != LOCK_FILE));
+            if non_empty {
+                if !locked {
+                    RunLock::check_free(out)?;
+                }
+                return Err(Error::input(format!(
+                    "{} exists and is not empty; choose another --out",
+                    out.display()
+                )));
+            }
+        }
+        Ok(())
+    };
+    check_out(false)?;
+    std::fs::create_dir_all(out).map_err(|e| Error::io(out, e))?;
+    let lock = RunLock::acquire(out, "merge")?;
+    check_out(true)?;
     let layout = RunLayout::new(out);
-    for d in [layout.root.clone(), layout.draws_dir(), layout.state_dir()] {
+    for d in [layout.draws_dir(), layout.state_dir()] {
         std::fs::create_dir_all(&d).map_err(|e| Error::io(&d, e))?;
     }
     // Files a run carries beside its own (the demo's data copy), from the first part.
@@ -137,7 +154,8 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig)>
     {
         let entry = entry.map_err(|e| Error::io(&first_layout.root, e))?;
         let name = entry.file_name().to_string_lossy().to_string();
-        if entry.path().is_file() && !OWN_FILES.contains(&name.as_str()) {
+        // Hidden files (a lock, a temporary file left by a killed writer) stay behind.
+        if entry.path().is_file() && !OWN_FILES.contains(&name.as_str()) && !name.starts_with('.') {
             copy(&entry.path(), &layout.root.join(&name))?;
         }
     }
@@ -151,7 +169,11 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig)>
     }
     records.sort_by_key(|c| c.id);
 
-    let (raw, _) = parse_config_file(&first_layout.config())?;
+    let (mut raw, _) = parse_config_file(&first_layout.config())?;
+    // A data path relative to the first part's directory is re-expressed from `out`.
+    if let Some(file) = raw.data.as_mut().and_then(|d| d.file.as_mut()) {
+        *file = super::data_path::rebase(file, &first_layout.root, out);
+    }
     let raw = merged_config(raw, &ids);
     let body = toml::to_string(&raw)
         .map_err(|e| Error::internal(format!("cannot write merged config: {e}")))?;
@@ -165,17 +187,26 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig)>
             .join(", ")
     );
     write_atomic(&layout.config(), text.as_bytes())?;
+    // The manifest records the data path as the parts' manifests do (absolute).
+    let mut manifest_raw = raw.clone();
+    let recorded = first.config.get("data").and_then(|d| d.get("file"));
+    if let (Some(d), Some(f)) = (
+        manifest_raw.data.as_mut(),
+        recorded.and_then(|f| f.as_str()),
+    ) {
+        d.file = Some(f.to_string());
+    }
     let manifest = Manifest {
         tool: first.tool.clone(),
         version: first.version.clone(),
         status: RunStatus::Complete,
         seed: first.seed,
         data: first.data.clone(),
-        config: serde_json::to_value(&raw)
+        config: serde_json::to_value(&manifest_raw)
             .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?,
         chains: records,
         started_unix: parts.iter().map(|p| p.2.started_unix).min().unwrap_or(0),
     };
     manifest.write(&layout.manifest())?;
-    Ok((manifest, raw))
+    Ok((manifest, raw, lock))
 }

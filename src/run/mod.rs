@@ -3,6 +3,7 @@
 //! [`RunResult`]). The command line and the Python package are thin layers over these
 //! functions; every run file is written from here.
 
+mod data_path;
 mod demo;
 mod execute;
 mod in_memory;
@@ -13,6 +14,7 @@ mod prepare;
 mod summarise;
 mod values;
 
+pub use data_path::{for_run_dir, rebase, relative_path};
 pub use demo::{demo_prepared, ExtraFile};
 pub use execute::{execute, ExecOptions, Mode, RunOutcome};
 pub use in_memory::summarise_in_memory;

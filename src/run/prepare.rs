@@ -58,6 +58,10 @@ pub fn sha256_hex(bytes: &[u8]) -> String {
 
 impl Prepared {
     /// From a config file on disk; its data file is read relative to the config's folder.
+    /// A run directory's config (a `manifest.json` beside it) whose data path leads
+    /// nowhere, as when the run directory was copied or moved without its data, falls
+    /// back to the absolute path the manifest recorded; whether the file still has the
+    /// run's SHA-256 is checked by the callers, as for any other path.
     pub fn from_config_file(path: &Path) -> Result<Prepared> {
         let text = std::fs::read_to_string(path).map_err(|e| {
             Error::input(format!("cannot read config file {}: {e}", path.display()))
@@ -68,7 +72,9 @@ impl Prepared {
         } else {
             dir
         };
-        Self::from_text(&text, &path.display().to_string(), &dir, None)
+        let origin = path.display().to_string();
+        let text = recorded_data_fallback(&text, &origin, &dir).unwrap_or(text);
+        Self::from_text(&text, &origin, &dir, None)
     }
 
     /// From config text. `data_bytes`, when given, is used instead of reading the data file
@@ -171,9 +177,10 @@ impl Prepared {
                 )));
             }
         }
-        // RUN/config.toml must find the data from inside the run directory (sample it again,
-        // `bands`, `resume`, `extend`), so it records the absolute path, not the path as
-        // written relative to the original config's folder.
+        // The absolute path, not the path as written relative to the original config's
+        // folder: RUN/config.toml must find the data from inside the run directory, and
+        // `execute` writes it there relative to that directory where it can
+        // (run/data_path.rs).
         config.data_file_text = abs.clone();
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let cells = config.resolution.map(|r| {
@@ -208,6 +215,26 @@ impl Prepared {
             cells,
         })
     }
+}
+
+/// `text` with its data path replaced by the absolute path in `dir/manifest.json`, when
+/// `dir` is a run directory, the path in `text` leads to no file and the recorded one does.
+fn recorded_data_fallback(text: &str, origin: &str, dir: &Path) -> Option<String> {
+    let manifest = dir.join("manifest.json");
+    if !manifest.exists() {
+        return None;
+    }
+    let mut raw = parse_config_str(text, origin).ok()?;
+    let file = raw.data.as_ref()?.file.clone()?;
+    if dir.join(&file).exists() {
+        return None;
+    }
+    let recorded = crate::store::Manifest::read(&manifest).ok()?.data.file;
+    if !(Path::new(&recorded).is_absolute() && Path::new(&recorded).is_file()) {
+        return None;
+    }
+    raw.data.as_mut()?.file = Some(recorded);
+    toml::to_string(&raw).ok()
 }
 
 /// The prior in standard units must be made of usable numbers: a user's value that is

@@ -12,6 +12,7 @@
 use serde::Serialize;
 
 use super::cdf::mixture_cdf;
+use super::finite_json::number_or_words;
 use super::quantile::quantile_sorted;
 use crate::data::{Bounds, Transform};
 use crate::store::DrawRow;
@@ -20,15 +21,21 @@ use crate::store::DrawRow;
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Interval {
     pub level: f64,
+    #[serde(serialize_with = "number_or_words")]
     pub lower: f64,
+    #[serde(serialize_with = "number_or_words")]
     pub upper: f64,
 }
 
-/// The posterior of one scalar feature.
+/// The posterior of one scalar feature. Serialised with every value that is not a finite
+/// float written as "not finite" ([`super::finite_json`]), never as `null`.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Posterior {
+    #[serde(serialize_with = "number_or_words")]
     pub mean: f64,
+    #[serde(serialize_with = "number_or_words")]
     pub median: f64,
+    #[serde(serialize_with = "number_or_words")]
     pub sd: f64,
     pub intervals: Vec<Interval>,
 }
@@ -80,9 +87,7 @@ pub fn mixture_sd(row: &DrawRow) -> f64 {
 pub fn mixture_mean_on(row: &DrawRow, t: Transform) -> f64 {
     match t {
         Transform::None => mixture_mean(row),
-        Transform::Log => (0..row.weight.len())
-            .map(|k| row.weight[k] * lognormal_mean(row, k))
-            .sum(),
+        Transform::Log => lognormal_mixture_moments(row).0,
         Transform::Logit(b) => (0..row.weight.len())
             .map(|k| row.weight[k] * logit_moments(row.mean[k], row.sd[k], b).0)
             .sum(),
@@ -93,17 +98,7 @@ pub fn mixture_mean_on(row: &DrawRow, t: Transform) -> f64 {
 pub fn mixture_sd_on(row: &DrawRow, t: Transform) -> f64 {
     match t {
         Transform::None => mixture_sd(row),
-        Transform::Log => {
-            let m = mixture_mean_on(row, t);
-            let v: f64 = (0..row.weight.len())
-                .map(|k| {
-                    let (mu, s2) = (row.mean[k], row.sd[k] * row.sd[k]);
-                    let var_k = s2.exp_m1() * (2.0 * mu + s2).exp();
-                    row.weight[k] * (var_k + (lognormal_mean(row, k) - m).powi(2))
-                })
-                .sum();
-            v.sqrt()
-        }
+        Transform::Log => lognormal_mixture_moments(row).1,
         Transform::Logit(b) => {
             let moments: Vec<(f64, f64)> = (0..row.weight.len())
                 .map(|k| logit_moments(row.mean[k], row.sd[k], b))
@@ -167,8 +162,53 @@ pub fn logit_moments(mu: f64, sd: f64, b: Bounds) -> (f64, f64) {
     (m.clamp(b.lower(), b.upper()), v)
 }
 
-fn lognormal_mean(row: &DrawRow, k: usize) -> f64 {
-    (row.mean[k] + 0.5 * row.sd[k] * row.sd[k]).exp()
+/// ln(e^s − 1) for s > 0, without overflow for large s.
+fn ln_expm1(s: f64) -> f64 {
+    if s > 1.0 {
+        s + (-(-s).exp()).ln_1p()
+    } else {
+        s.exp_m1().ln()
+    }
+}
+
+/// Mean and sd of a mixture of log-normals (component k: ln x ~ N(μ_k, σ_k²)), computed
+/// with every term scaled by e^(−L), L the largest log of a component mean or sd, so a
+/// moment overflows only when the moment itself exceeds the largest float (a component
+/// variance e^(2μ+σ²)(e^(σ²) − 1) overflows long before its sd does).
+fn lognormal_mixture_moments(row: &DrawRow) -> (f64, f64) {
+    let k = row.weight.len();
+    let ln_mean: Vec<f64> = (0..k)
+        .map(|j| row.mean[j] + 0.5 * row.sd[j] * row.sd[j])
+        .collect();
+    let ln_var: Vec<f64> = (0..k)
+        .map(|j| {
+            let s2 = row.sd[j] * row.sd[j];
+            ln_expm1(s2) + 2.0 * row.mean[j] + s2
+        })
+        .collect();
+    let used = || (0..k).filter(|&j| row.weight[j] > 0.0);
+    // ln of the mixture mean by log-sum-exp over the components.
+    let lm = used().map(|j| ln_mean[j]).fold(f64::NEG_INFINITY, f64::max);
+    // The scale of the variance: the largest component mean or sd.
+    let l = used()
+        .map(|j| ln_mean[j].max(0.5 * ln_var[j]))
+        .fold(f64::NEG_INFINITY, f64::max);
+    if !(lm.is_finite() && l.is_finite()) {
+        return (f64::NAN, f64::NAN);
+    }
+    let ln_total = lm
+        + used()
+            .map(|j| row.weight[j] * (ln_mean[j] - lm).exp())
+            .sum::<f64>()
+            .ln();
+    let centre = (ln_total - l).exp();
+    let var: f64 = used()
+        .map(|j| {
+            let spread = (ln_mean[j] - l).exp() - centre;
+            row.weight[j] * ((ln_var[j] - 2.0 * l).exp() + spread * spread)
+        })
+        .sum();
+    (ln_total.exp(), (l + 0.5 * var.ln()).exp())
 }
 
 /// The p-quantile on the original scale (quantiles commute with increasing maps).
@@ -251,5 +291,51 @@ mod tests {
         assert!((p.sd - (5.0f64 / 3.0).sqrt()).abs() < 1e-12);
         assert!((p.intervals[0].lower - 1.15).abs() < 1e-12);
         assert!((p.intervals[0].upper - 3.85).abs() < 1e-12);
+    }
+
+    #[test]
+    fn log_scale_moments_match_the_lognormal_formulas() {
+        // 0.4 LN(0, 0.5²) + 0.6 LN(1, 0.25²): component means e^(μ+σ²/2), variances
+        // (e^(σ²) − 1) e^(2μ+σ²) (log-normal moments, common practice, no source), mixed by
+        // the law of total variance; computed directly here in ordinary floats.
+        let r = row(&[0.4, 0.6], &[0.0, 1.0], &[0.5, 0.25]);
+        let m = [0.125f64.exp(), (1.0f64 + 0.03125).exp()];
+        let v = [
+            0.25f64.exp_m1() * 0.25f64.exp(),
+            0.0625f64.exp_m1() * (2.0f64 + 0.0625).exp(),
+        ];
+        let mean = 0.4 * m[0] + 0.6 * m[1];
+        let var = 0.4 * (v[0] + (m[0] - mean).powi(2)) + 0.6 * (v[1] + (m[1] - mean).powi(2));
+        let t = Transform::Log;
+        assert!((mixture_mean_on(&r, t) / mean - 1.0).abs() < 1e-14);
+        assert!((mixture_sd_on(&r, t) / var.sqrt() - 1.0).abs() < 1e-14);
+    }
+
+    #[test]
+    fn huge_log_scale_moments_stay_finite_while_they_fit_a_float() {
+        // One component, ln x ~ N(0, 26²): ln mean = 338, ln sd = σ² + ½ ln(1 − e^(−σ²))
+        // = 676 (to 1e-290): the sd ≈ 1e293 fits a float though the variance e^1352 does
+        // not (exact log-normal formulas, common practice, no source).
+        let r = row(&[1.0], &[0.0], &[26.0]);
+        let t = Transform::Log;
+        assert!((mixture_mean_on(&r, t).ln() - 338.0).abs() < 1e-12);
+        assert!((mixture_sd_on(&r, t).ln() - 676.0).abs() < 1e-12);
+        // σ = 40: the mean e^800 and the sd e^1600 exceed the largest float (e^709.78):
+        // summary.json writes them, and the posterior summaries over such draws, in words.
+        let big = row(&[0.5, 0.5], &[0.0, 1.0], &[40.0, 1.0]);
+        let (mean, sd) = (mixture_mean_on(&big, t), mixture_sd_on(&big, t));
+        assert!(mean.is_infinite() && sd.is_infinite());
+        let p = Posterior::of(&[mean, mixture_mean_on(&r, t)], &[0.9]);
+        let json = serde_json::to_string(&p).unwrap();
+        assert!(!json.contains("null"), "{json}");
+        assert!(json.contains("\"mean\":\"not finite\""), "{json}");
+        assert!(json.contains("\"sd\":\"not finite\""), "{json}");
+        assert!(json.contains("\"upper\":\"not finite\""), "{json}");
+        // The median of two draws (one overflowing) is ∞ too; the lower end is finite.
+        let p = Posterior::of(&[1.0, 2.0, mean], &[0.5]);
+        let v: serde_json::Value = serde_json::to_value(&p).unwrap();
+        assert_eq!(v["median"], 2.0);
+        assert_eq!(v["mean"], "not finite");
+        assert!(v["intervals"][0]["lower"].is_f64());
     }
 }

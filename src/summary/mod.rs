@@ -9,6 +9,7 @@ mod bumps;
 mod cdf;
 mod density;
 mod features;
+mod finite_json;
 mod functionals;
 mod grid;
 mod modes;
@@ -23,6 +24,7 @@ pub use bumps::{draw_bumps, DrawBump};
 pub use cdf::{cdf_draws, mixture_cdf, mixture_cdf_on, std_normal_cdf};
 pub use density::{mixture_density, mixture_density_on, DensityDraws, DrawDensity};
 pub use features::DrawFeatures;
+pub use finite_json::{number_or_words, NOT_FINITE};
 pub use functionals::{
     mixture_mean, mixture_mean_on, mixture_quantile, mixture_quantile_on, mixture_sd,
     mixture_sd_on, Interval, Posterior,
