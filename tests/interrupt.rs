@@ -6,6 +6,8 @@
 
 mod robust_support;
 
+mod common;
+
 use std::path::{Path, PathBuf};
 use std::process::Child;
 use std::sync::OnceLock;
@@ -217,7 +219,7 @@ fn half_written_last_row_is_ignored_by_bands() {
     let reference = reference();
     let s = Scratch::new("interrupt_half_row");
     let run = s.path("run");
-    copy_dir(reference, &run);
+    common::copy_dir(reference, &run);
     // The copy's config.toml names the data relative to the reference run, which leads
     // nowhere from here: the manifest's absolute path is used, so `bands` works.
     let mut f = std::fs::OpenOptions::new()
@@ -244,17 +246,4 @@ fn half_written_last_row_is_ignored_by_bands() {
         "{}",
         stderr(&out)
     );
-}
-
-fn copy_dir(from: &Path, to: &Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap() {
-        let e = e.unwrap();
-        let dest = to.join(e.file_name());
-        if e.file_type().unwrap().is_dir() {
-            copy_dir(&e.path(), &dest);
-        } else {
-            std::fs::copy(e.path(), dest).unwrap();
-        }
-    }
 }

@@ -6,6 +6,8 @@
 
 mod robust_support;
 
+mod common;
+
 use robust_support::{assert_input_error, assert_ok, assert_same_results, mixture_csv, Scratch};
 
 const CONFIG: &str =
@@ -144,26 +146,13 @@ fn a_merge_elsewhere_finds_the_data_from_its_own_directory() {
     assert_same_results(&s.path("moved/joined"), &s.path("moved/whole"));
 }
 
-fn copy_dir(from: &std::path::Path, to: &std::path::Path) {
-    std::fs::create_dir_all(to).unwrap();
-    for e in std::fs::read_dir(from).unwrap() {
-        let e = e.unwrap();
-        let dest = to.join(e.file_name());
-        if e.file_type().unwrap().is_dir() {
-            copy_dir(&e.path(), &dest);
-        } else {
-            std::fs::copy(e.path(), dest).unwrap();
-        }
-    }
-}
-
 #[test]
 fn a_run_directory_copied_without_its_data_falls_back_to_the_recorded_path() {
     // The copy's "../data.csv" leads nowhere; the manifest's absolute path (the same
     // file, same SHA-256) is used, and the copy continues exactly as the original.
     let s = Scratch::new("moved_run_alone");
     project(&s, "proj");
-    copy_dir(&s.path("proj/run"), &s.path("alone/deeper/run"));
+    common::copy_dir(&s.path("proj/run"), &s.path("alone/deeper/run"));
     assert!(!s.path("alone/deeper/data.csv").exists());
     run(&s, &["extend", "proj/run", "--draws", "10"]);
     run(&s, &["extend", "alone/deeper/run", "--draws", "10"]);

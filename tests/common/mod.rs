@@ -165,3 +165,17 @@ pub fn bands_mean(path: &std::path::Path) -> Vec<(f64, f64)> {
         })
         .collect()
 }
+
+/// Copies the folder `from` into `to`, recursively.
+pub fn copy_dir(from: &std::path::Path, to: &std::path::Path) {
+    std::fs::create_dir_all(to).unwrap();
+    for e in std::fs::read_dir(from).unwrap() {
+        let e = e.unwrap();
+        let dest = to.join(e.file_name());
+        if e.file_type().unwrap().is_dir() {
+            copy_dir(&e.path(), &dest);
+        } else {
+            std::fs::copy(e.path(), dest).unwrap();
+        }
+    }
+}
