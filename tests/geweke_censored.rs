@@ -6,6 +6,10 @@
 //! (sweep on the cells of y, then fresh y ~ p(y | θ)) has the joint p(θ) p(y | θ) as its
 //! stationary law, so test functions of (θ, y) have the same means under both simulators.
 //!
+//! On the conditional sweep the sampler draws no exact values: it draws counts per cell and
+//! updates the parameters given them by Metropolis–Hastings (src/sampler/cell_counts.rs,
+//! cell_params.rs); the collapsed sweep draws the exact values for its scan.
+//!
 //! The resolution is coarse (0.8 standard units against component sds near 0.7), so the
 //! censoring matters; a sampler told cells twice as wide (a wrong truncation) must be
 //! rejected by the same test.
@@ -17,6 +21,7 @@ use geweke::{bonferroni_threshold, table, Plan, TestFn};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::data::{Cells, Transform};
 use mixband::model::{Concentration, Prior, State, VarScale};
+use mixband::sampler::cell_params::CellRatio;
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::{sweep_opts, SweepOptions};
 
@@ -28,7 +33,7 @@ fn prior(kernel: Kernel, weights: WeightsKind, collapsed: bool) -> Prior {
         kernel,
         weights,
         components: 3,
-        label_moves: collapsed && weights == WeightsKind::StickBreaking,
+        label_moves: weights == WeightsKind::StickBreaking,
         collapsed,
         centre: 0.0,
         centre_sd: 1.5,
@@ -108,10 +113,16 @@ const PLAN: Plan = Plan {
 
 /// Largest |z| with the sampler told cells of width `told`, and the table for messages.
 fn worst(p: &Prior, told: f64, plan: Plan) -> (f64, String) {
+    worst_with(p, told, plan, CellRatio::Exact)
+}
+
+/// [`worst`] with the given ratio for the parameter updates given counts per cell.
+fn worst_with(p: &Prior, told: f64, plan: Plan, cell_ratio: CellRatio) -> (f64, String) {
     let sweep = move |y: &[f64], p: &Prior, s: &mut State, k: &StreamKey, t: u64| {
         let cells = cells_of(y, R, told);
         let opts = SweepOptions {
             cells: Some(&cells),
+            cell_ratio,
             ..SweepOptions::default()
         };
         sweep_opts(y, p, s, k, t, &opts);
@@ -142,6 +153,16 @@ fn censored_conditional_sweep_location_stick_breaking() {
 }
 
 #[test]
+fn censored_conditional_sweep_location_scale_stick_breaking() {
+    check(Kernel::LocationScale, WeightsKind::StickBreaking, false, 35);
+}
+
+#[test]
+fn censored_conditional_sweep_location_dirichlet() {
+    check(Kernel::Location, WeightsKind::Dirichlet, false, 36);
+}
+
+#[test]
 fn censored_collapsed_sweep_location_scale_stick_breaking() {
     check(Kernel::LocationScale, WeightsKind::StickBreaking, true, 33);
 }
@@ -166,4 +187,27 @@ fn joint_test_rejects_a_wrong_truncation() {
     };
     let (z, t) = worst(&p, 2.0 * R, plan);
     assert!(z > limit, "wrong truncation not detected: |z| {z:.2}\n{t}");
+}
+
+/// The conditional sweep updates the parameters given counts per cell by
+/// Metropolis–Hastings with a proposal that depends on the current point; without the
+/// proposal's correction in the ratio it samples the wrong law, and the test must see it.
+#[test]
+fn joint_test_rejects_the_cell_update_without_its_proposal_ratio() {
+    let limit = bonferroni_threshold(0.001, test_fns().len());
+    let plan = Plan {
+        mc_draws: 20_000,
+        sc_sweeps: 20_000,
+        batches: 40,
+        seed: 42,
+        ..PLAN
+    };
+    for kernel in [Kernel::LocationScale, Kernel::Location] {
+        let p = prior(kernel, WeightsKind::Dirichlet, false);
+        let (z, t) = worst_with(&p, R, plan, CellRatio::WithoutProposal);
+        assert!(
+            z > limit,
+            "{kernel:?}: wrong ratio not detected: |z| {z:.2}\n{t}"
+        );
+    }
 }

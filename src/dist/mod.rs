@@ -15,4 +15,6 @@ pub use dirichlet::log_dirichlet;
 pub use gamma::{gamma_rate, inv_gamma, log_gamma};
 pub use logsumexp::{log_add_exp, log_sum_exp};
 pub use normal::{ln_normal_pdf, normal, std_normal, LN_SQRT_2PI};
-pub use truncnorm::{ln_std_normal_interval, ln_upper_tail, truncated_std_normal};
+pub use truncnorm::{
+    ln_std_normal_interval, ln_upper_tail, truncated_std_normal, truncated_std_normal_moments,
+};

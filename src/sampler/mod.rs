@@ -6,6 +6,8 @@
 //! continues it exactly.
 
 pub mod allocate;
+pub mod cell_counts;
+pub mod cell_params;
 pub mod censored;
 pub mod chain;
 pub mod collapsed;

@@ -3,10 +3,13 @@
 //! kernel's variance scale given the statistics (component parameters integrated out),
 //! component parameters, the remaining hyperparameters.
 
+use super::allocate::SuffStats;
 use super::allocate::{
     allocate_reference_labels, allocate_weighted, allocate_with, AllocOptions, Allocation,
     ComponentTable,
 };
+use super::cell_counts::allocate_cell_counts;
+use super::cell_params::{update_components_given_cells, CellRatio, CellTally};
 use super::censored::allocate_censored;
 use super::collapsed::collapsed_scan;
 use super::split_merge::split_merge;
@@ -35,6 +38,9 @@ pub struct SweepOutcome {
     pub occupied: usize,
     /// Proposals and acceptances of the label-switching moves (zero when they are off).
     pub moves: MoveTally,
+    /// Proposals and acceptances of the parameter updates given counts per cell (the
+    /// conditional sweep for data recorded at a resolution; zero otherwise).
+    pub cell_moves: CellTally,
 }
 
 /// How a sweep runs beyond the model: none of these change what it samples from.
@@ -51,6 +57,9 @@ pub struct SweepOptions<'a> {
     /// The cells the data stand for when they were recorded at a resolution; when given,
     /// the sweep samples given the cells and `x` and `counts` are not read.
     pub cells: Option<&'a Cells>,
+    /// Ratio of the parameter updates given counts per cell (conditional sweep with
+    /// cells); only the joint-distribution test passes anything but the exact one.
+    pub cell_ratio: CellRatio,
 }
 
 impl Default for SweepOptions<'_> {
@@ -60,6 +69,7 @@ impl Default for SweepOptions<'_> {
             alloc: AllocOptions::default(),
             counts: None,
             cells: None,
+            cell_ratio: CellRatio::Exact,
         }
     }
 }
@@ -101,6 +111,9 @@ pub fn sweep_opts(
     opts: &SweepOptions<'_>,
 ) -> SweepOutcome {
     pin_fixed(prior, state);
+    if let (Some(cells), false) = (opts.cells, prior.collapsed) {
+        return cell_sweep(cells, prior, state, key, index, opts);
+    }
     let table = ComponentTable::new(state);
     let mut alloc = match (opts.cells, opts.counts) {
         (Some(cells), _) => censored_allocation(cells, prior, state, key, index),
@@ -136,6 +149,55 @@ pub fn sweep_opts(
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
         moves,
+        cell_moves: CellTally::default(),
+    }
+}
+
+/// The conditional sweep for data recorded at a resolution: counts per cell given the
+/// parameters (no exact values drawn), the label moves on those counts, the weights and
+/// concentration given the counts, then the component parameters and the variance scale
+/// by Metropolis–Hastings given the counts (`cell_params`). O(cells × K) a sweep.
+fn cell_sweep(
+    cells: &Cells,
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    opts: &SweepOptions<'_>,
+) -> SweepOutcome {
+    let (mut counts, loglik) = allocate_cell_counts(cells, state, key, index);
+    let mut moves = MoveTally::default();
+    if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
+        // The moves read only the counts and swap whole components; each label's origin
+        // rides through the swaps in the (otherwise unused) sums, so the cells held by
+        // each component can follow.
+        let k = state.k();
+        let mut stats = SuffStats {
+            n: counts.totals(),
+            sum: (0..k).map(|j| j as f64).collect(),
+            sumsq: vec![0.0; k],
+        };
+        moves = label_moves(&mut stats, state, opts.ratios, &mut key.label_rng(index));
+        let mut held = std::mem::take(&mut counts.held);
+        counts.held = stats
+            .sum
+            .iter()
+            .map(|&from| std::mem::take(&mut held[from as usize]))
+            .collect();
+    }
+    let n = counts.totals();
+    let mut rng = key.sweep_rng(index);
+    update_concentration_given_counts(prior, &n, state, &mut rng);
+    update_weights(prior.weights, &n, state, &mut rng);
+    let cell_moves =
+        update_components_given_cells(prior, cells, &counts, state, opts.cell_ratio, &mut rng);
+    update_var_scale(prior, state, &mut rng);
+    update_concentration(prior, state, &mut rng);
+    SweepOutcome {
+        loglik_before: loglik,
+        occupied: n.iter().filter(|&&c| c > 0).count(),
+        moves,
+        cell_moves,
     }
 }
 
