@@ -12,7 +12,10 @@
 //! `cargo bench --bench converged`. Environment: CONVERGED_SIZES (comma-separated n,
 //! default 1000,10000,100000,1000000), CONVERGED_ONLY (substring of a density's name),
 //! CONVERGED_TIMEOUT (seconds a run may take before it is stopped and reported as timed
-//! out, default 900), CONVERGED_KEEP (a folder to keep the runs in).
+//! out, default 900), CONVERGED_KEEP (a folder to keep the runs in), CONVERGED_DECIMALS
+//! (d: every sample is recorded to d decimals and the config says so with
+//! `[data] resolution = 10^-d`, the data-recorded-at-a-resolution case; unset: the values
+//! are written in full and treated as exact, the demo generator's to one decimal).
 
 #[path = "support/densities.rs"]
 mod densities;
@@ -76,16 +79,27 @@ fn read_diagnostics(path: &Path) -> Result<(bool, f64, f64), String> {
     Ok((passed, lowest, density_bulk / draws))
 }
 
-fn run_one(bin: &Path, dir: &Path, d: &Density, n: usize, seed: u64, timeout: f64) -> Outcome {
-    let decimals = (d.name == "demo generator").then_some(1);
+fn run_one(
+    bin: &Path,
+    dir: &Path,
+    (d, recorded): (&Density, Option<usize>),
+    n: usize,
+    seed: u64,
+    timeout: f64,
+) -> Outcome {
+    let decimals = recorded.or((d.name == "demo generator").then_some(1));
     let csv = sample_csv_with(d, n, seed, decimals);
+    let resolution = recorded.map_or(String::new(), |d| {
+        format!("resolution = {}\n", 10f64.powi(-(d as i32)))
+    });
     if let Err(e) = std::fs::create_dir_all(dir)
         .and_then(|_| std::fs::write(dir.join("data.csv"), csv))
         .and_then(|_| {
             std::fs::write(
                 dir.join("run.toml"),
                 format!(
-                    "[data]\nfile = \"data.csv\"\ncolumn = \"value\"\n\n[sampler]\nseed = {seed}\n"
+                    "[data]\nfile = \"data.csv\"\ncolumn = \"value\"\n{resolution}\n\
+                     [sampler]\nseed = {seed}\n"
                 ),
             )
         })
@@ -145,6 +159,9 @@ fn main() {
         .and_then(|v| v.parse().ok())
         .unwrap_or(900.0);
     let keep = std::env::var("CONVERGED_KEEP").ok().map(PathBuf::from);
+    let recorded: Option<usize> = std::env::var("CONVERGED_DECIMALS")
+        .ok()
+        .and_then(|v| v.parse().ok());
     let scratch = std::env::temp_dir().join(format!("mixband-converged-{}", std::process::id()));
     let root = keep.clone().unwrap_or_else(|| scratch.clone());
     let mut all = densities();
@@ -152,6 +169,9 @@ fn main() {
     println!(
         "Time to a converged answer: `mixband sample` with the defaults, 4 chains, this machine"
     );
+    if let Some(d) = recorded {
+        println!("samples recorded to {d} decimals, `[data] resolution` set to match");
+    }
     println!(
         "{:<18} {:>9} {:>9} {:>14} {:>11} {:>12} {:>10}",
         "density", "n", "wall s", "gate", "lowest ESS", "ESS/draw", "ESS/s"
@@ -164,7 +184,7 @@ fn main() {
             let seed = 7000 + 10 * i as u64;
             let dir = root.join(format!("{}-{n}", d.name.replace(' ', "-")));
             let label = d.name.split_whitespace().next().unwrap_or(d.name);
-            match run_one(&bin, &dir, d, n, seed, timeout) {
+            match run_one(&bin, &dir, (d, recorded), n, seed, timeout) {
                 Outcome::Finished {
                     wall,
                     passed,

@@ -7,6 +7,7 @@ mod beta;
 mod dirichlet;
 mod gamma;
 mod logsumexp;
+mod multinomial;
 mod normal;
 mod truncnorm;
 
@@ -14,6 +15,7 @@ pub use beta::log_beta;
 pub use dirichlet::log_dirichlet;
 pub use gamma::{gamma_rate, inv_gamma, log_gamma};
 pub use logsumexp::{log_add_exp, log_sum_exp};
+pub use multinomial::multinomial;
 pub use normal::{ln_normal_pdf, normal, std_normal, LN_SQRT_2PI};
 pub use truncnorm::{
     ln_std_normal_interval, ln_upper_tail, truncated_std_normal, truncated_std_normal_moments,

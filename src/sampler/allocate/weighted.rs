@@ -1,6 +1,7 @@
 //! The allocation step for tabulated data: row i stands for c_i identical observations
 //! (integer frequency weights). The c_i allocations of a row are independent draws from
-//! the row's probabilities, one uniform each, i.e. a multinomial(c_i, p_i); sufficient
+//! the row's probabilities, i.e. one multinomial(c_i, p_i) draw (a row of one takes the
+//! categorical draw, a larger row the chain of binomials, O(K) whatever c_i); sufficient
 //! statistics add the picks (n_k += m_ik, sum += m_ik·x_i, sumsq += m_ik·x_i²) and the
 //! log-likelihood adds c_i · ln f(x_i). Built on the reference arithmetic ([`terms`], std's
 //! `exp`), with the same per-block streams keyed by (seed, chain, sweep, block) and block
@@ -11,6 +12,7 @@ use rand::Rng;
 
 use super::reference::{pick, terms};
 use super::types::{Allocation, ComponentTable, SuffStats, BLOCK};
+use crate::dist::multinomial;
 use crate::sampler::rng::StreamKey;
 
 /// Draws the allocations of every row (`counts[i]` of them for row i) and returns the
@@ -28,6 +30,7 @@ pub fn allocate_weighted(
     let mut loglik = 0.0;
     let mut p = vec![0.0; k];
     let mut picks = vec![0u64; k];
+    let mut tail = vec![0.0; k];
     let mut block_stats = SuffStats::zeros(k);
     for (b, (chunk, cchunk)) in x.chunks(BLOCK).zip(counts.chunks(BLOCK)).enumerate() {
         let mut rng = key.block_rng(sweep, b as u64);
@@ -37,8 +40,10 @@ pub fn allocate_weighted(
             let (m, s) = terms(xi, table, &mut p);
             block_ll += ci as f64 * (m + s.ln());
             picks.iter_mut().for_each(|v| *v = 0);
-            for _ in 0..ci {
+            if ci == 1 {
                 picks[pick(&p, rng.random::<f64>() * s)] += 1;
+            } else {
+                multinomial(ci, &p, &mut tail, &mut picks, &mut rng);
             }
             for (j, &mj) in picks.iter().enumerate() {
                 if mj > 0 {
