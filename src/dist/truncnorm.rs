@@ -55,6 +55,13 @@ pub fn ln_std_normal_interval(a: f64, b: f64) -> f64 {
 /// intervals far in a tail keep their digits; the pair is kept consistent (E[Z] in (a, b),
 /// E[Z²] ≥ E[Z]²) against the last bits of rounding.
 pub fn truncated_std_normal_moments(a: f64, b: f64) -> (f64, f64) {
+    let (_, m1, m2) = truncated_std_normal_summary(a, b);
+    (m1, m2)
+}
+
+/// (ln P(a < Z < b), E[Z | a < Z < b], E[Z² | a < Z < b]) from one evaluation of the
+/// interval's probability; see [`truncated_std_normal_moments`].
+pub fn truncated_std_normal_summary(a: f64, b: f64) -> (f64, f64, f64) {
     debug_assert!(a < b, "empty interval ({a}, {b})");
     let ln_p = ln_std_normal_interval(a, b);
     // φ(t)/P and t φ(t)/P, both 0 at an infinite edge.
@@ -70,7 +77,7 @@ pub fn truncated_std_normal_moments(a: f64, b: f64) -> (f64, f64) {
     let (rb, trb) = ratio(b);
     let m1 = (ra - rb).clamp(a, b);
     let m2 = (1.0 + tra - trb).max(m1 * m1);
-    (m1, m2)
+    (ln_p, m1, m2)
 }
 
 /// ln(1 − e^d) for d ≤ 0 without cancellation (Mächler 2012, "Accurately computing

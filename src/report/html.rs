@@ -181,11 +181,16 @@ fn metadata(out: &mut String, inp: &RunInputs) {
                 c.draws,
                 c.warmup,
                 c.thin,
-                match c.allocation {
-                    crate::config::AllocationKind::Collapsed => {
+                match (c.allocation, c.resolution.is_some()) {
+                    (crate::config::AllocationKind::Collapsed, _) => {
                         "collapsed allocation scan with split–merge moves"
                     }
-                    crate::config::AllocationKind::Conditional => "conditional allocation step",
+                    (crate::config::AllocationKind::Conditional, true) => {
+                        "conditional step on counts per recorded cell"
+                    }
+                    (crate::config::AllocationKind::Conditional, false) => {
+                        "conditional allocation step"
+                    }
                 }
             ),
         ),

@@ -27,10 +27,7 @@ use statrs::function::gamma::ln_gamma;
 use super::cell_counts::CellCounts;
 use crate::config::Kernel;
 use crate::data::Cells;
-use crate::dist::{
-    gamma_rate, inv_gamma, ln_normal_pdf, ln_std_normal_interval, normal,
-    truncated_std_normal_moments,
-};
+use crate::dist::{gamma_rate, inv_gamma, ln_normal_pdf, normal, truncated_std_normal_summary};
 use crate::model::{Prior, State, VarScale};
 
 /// Which Metropolis–Hastings ratio the parameter updates use. The sampler uses
@@ -71,8 +68,8 @@ fn pass(cells: &Cells, held: &[(u32, u64)], mu: f64, sd: f64) -> Pass {
             (cells.hi[c as usize] - mu) / sd,
         );
         let m = m as f64;
-        let (t1, t2) = truncated_std_normal_moments(a, b);
-        p.loglik += m * ln_std_normal_interval(a, b);
+        let (ln_p, t1, t2) = truncated_std_normal_summary(a, b);
+        p.loglik += m * ln_p;
         p.n += m;
         p.s1 += m * (mu + sd * t1);
         p.s2 += m * (mu * mu + 2.0 * mu * sd * t1 + sd * sd * t2);
