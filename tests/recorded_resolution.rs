@@ -218,6 +218,11 @@ fn the_model_check_compares_cells_with_cells() {
     // One randomised PIT value per observation, in (0, 1).
     let values_pit = pit["pit"].as_array().unwrap();
     assert_eq!(values_pit.len(), 600);
+    // The counts name what they count: the cells of the 0.5 lattice, not rows.
+    assert_eq!(pit["unit"], "cells", "{pit:#}");
+    let cells: std::collections::BTreeSet<i64> =
+        values.iter().map(|v| (v * 2.0).round() as i64).collect();
+    assert_eq!(pit["rows_total"].as_u64(), Some(cells.len() as u64));
     let tails: Vec<&serde_json::Value> = c["statistics"]
         .as_array()
         .unwrap()

@@ -67,13 +67,21 @@ pub struct ReplicateInfo {
     pub kde_bandwidth: f64,
 }
 
+fn rows_unit() -> String {
+    "rows".to_string()
+}
+
 /// The LOO-PIT part of checks.json.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct PitReport {
     pub draws_used: usize,
-    /// Rows (distinct observations with their counts) used, and in the data.
+    /// Rows (distinct observations with their counts) used, and in the data; for data
+    /// recorded at a resolution, cells.
     pub rows_used: usize,
     pub rows_total: usize,
+    /// What `rows_used` counts: "rows", or "cells" for data recorded at a resolution.
+    #[serde(default = "rows_unit")]
+    pub unit: String,
     pub subsampled: bool,
     /// The PIT value and Pareto k̂ of each row used, in data order (k̂ `null` when the
     /// tail was too short to fit).
@@ -321,6 +329,7 @@ pub fn check_run(layout: &RunLayout, prep: &Prepared, threads: usize) -> Result<
         draws_used: loo_draws.len(),
         rows_used,
         rows_total,
+        unit: if prep.cells.is_some() { "cells" } else { "rows" }.to_string(),
         subsampled,
         pit,
         pareto_k: pareto_k.iter().map(|&k| k.is_finite().then_some(k)).collect(),

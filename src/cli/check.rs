@@ -81,10 +81,11 @@ pub fn table(r: &CheckReport) -> String {
     ));
     let l = &r.loo_pit;
     out.push_str(&format!(
-        "LOO-PIT over {} draws and {} of {} rows: ECDF {} its {}% simultaneous band (uniformity p = {:.3}, largest |ECDF - z| = {:.3}); {:.1}% of observations with Pareto k > 0.7\n",
+        "LOO-PIT over {} draws and {} of {} {}: ECDF {} its {}% simultaneous band (uniformity p = {:.3}, largest |ECDF - z| = {:.3}); {:.1}% of observations with Pareto k > 0.7\n",
         l.draws_used,
         l.rows_used,
         l.rows_total,
+        l.unit,
         if l.within_band { "inside" } else { "OUTSIDE" },
         l.band.level * 100.0,
         l.uniformity_p_value,

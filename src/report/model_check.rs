@@ -98,7 +98,7 @@ pub fn model_check_section(out: &mut String, checks: Option<&CheckReport>) {
                  {:.1}% of the observations have Pareto k̂ above 0.7.",
                 l.draws_used,
                 if l.subsampled {
-                    format!(", a random {} of the {} rows", l.rows_used, l.rows_total)
+                    format!(", a random {} of the {} {}", l.rows_used, l.rows_total, l.unit)
                 } else {
                     String::new()
                 },
