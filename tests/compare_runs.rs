@@ -101,3 +101,77 @@ fn pointwise_loglik_adds_up_and_different_data_are_refused() {
     assert!(e.contains("not fitted to the same data"), "{e}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// Runs on tabulated data and on data recorded at a resolution are compared too. Each
+/// column stands for its count of observations, so Σ_i count_i · ln p_i(θ_s) must give the
+/// sampler's stored log-likelihood of every draw: for weighted rows the density (plus the
+/// Jacobian on the log scale), for recorded data the probability of each cell, which no
+/// transform changes. A run that scores densities and one that scores cell probabilities
+/// are not on one scale and are refused.
+#[test]
+fn weighted_and_recorded_runs_are_scored_by_their_counts() {
+    let dir = scratch("compare-counted");
+    // Values on a 0.5 lattice with ties (deterministic).
+    let x: Vec<f64> = (0..120)
+        .map(|i| 1.0 + 0.5 * ((i * 7 % 13) as f64) + if i % 3 == 0 { 4.0 } else { 0.0 })
+        .collect();
+    let plain = small_run(&dir, "plain", &x, "");
+    let cells = small_run(&dir, "cells", &x, "resolution = 0.5");
+    let cells_log = small_run(
+        &dir,
+        "cellslog",
+        &x,
+        "resolution = 0.5\ntransform = \"log\"",
+    );
+    // The same values as a (value, count) table.
+    let mut table: std::collections::BTreeMap<i64, u64> = Default::default();
+    for v in &x {
+        *table.entry((v * 2.0).round() as i64).or_default() += 1;
+    }
+    let csv: String = std::iter::once("x,n".to_string())
+        .chain(
+            table
+                .iter()
+                .map(|(k, c)| format!("{},{c}", *k as f64 / 2.0)),
+        )
+        .collect::<Vec<_>>()
+        .join("\n");
+    std::fs::write(dir.join("tab.csv"), csv + "\n").unwrap();
+    std::fs::write(
+        dir.join("tab.toml"),
+        "[data]\nfile = \"tab.csv\"\ncolumn = \"x\"\nweights = \"n\"\n[model]\ncomponents = 3\n\
+         [sampler]\nchains = 2\nwarmup = 50\ndraws = 60\nseed = 3\n",
+    )
+    .unwrap();
+    let tab = dir.join("tab");
+    common::sample_in_process(&dir.join("tab.toml"), &tab);
+
+    for run in [&cells, &cells_log, &tab] {
+        let r = run_loglik(run).unwrap();
+        assert_eq!(r.counts.len(), table.len(), "one column per distinct value");
+        assert_eq!(r.observations(), x.len() as u64);
+        let stored = stored_loglik(run);
+        for (s, want) in stored.iter().enumerate() {
+            let got: f64 = r.ll.values[s * r.ll.obs..(s + 1) * r.ll.obs]
+                .iter()
+                .zip(&r.counts)
+                .map(|(v, &c)| c as f64 * v)
+                .sum();
+            assert!(
+                (got - want).abs() < 1e-8 * want.abs().max(1.0),
+                "{}: draw {s}: {got} vs stored {want}",
+                run.display()
+            );
+        }
+    }
+    let scored = compare(&[run_loglik(&cells).unwrap(), run_loglik(&cells_log).unwrap()]).unwrap();
+    assert_eq!(scored.len(), 2);
+    assert!(scored[1].elpd_diff_loo >= 0.0 && scored[1].se_diff_loo > 0.0);
+    // Cell probabilities are at most 1, so elpd of a recorded run is at most 0.
+    assert!(scored.iter().all(|s| s.loo.elpd < 0.0 && s.waic.elpd < 0.0));
+    let e = compare(&[run_loglik(&plain).unwrap(), run_loglik(&cells).unwrap()])
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("same [data] resolution"), "{e}");
+    let _ = std::fs::remove_dir_all(&dir);
+}

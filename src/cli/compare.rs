@@ -14,7 +14,7 @@ struct CompareFile<'a> {
     version: &'static str,
     data_sha256: &'a str,
     column: &'a str,
-    n: usize,
+    n: u64,
     r_eff: f64,
     note: &'static str,
     runs: &'a [Scored],
@@ -60,7 +60,7 @@ pub(super) fn compare(runs: &[PathBuf], json: bool) -> Result<i32> {
             version: env!("CARGO_PKG_VERSION"),
             data_sha256: &d.sha256,
             column: &d.column,
-            n: lls[0].ll.obs,
+            n: lls[0].observations(),
             r_eff: 1.0,
             note: NOTE,
             runs: &scored,
@@ -74,7 +74,7 @@ pub(super) fn compare(runs: &[PathBuf], json: bool) -> Result<i32> {
             "data: column \"{}\" of {} (n = {}, SHA-256 {})\n",
             d.column,
             d.file,
-            lls[0].ll.obs,
+            lls[0].observations(),
             &d.sha256[..12.min(d.sha256.len())]
         ));
         out.push_str(&format!(

@@ -29,13 +29,21 @@ pub struct Loo {
 
 /// PSIS-LOO of a log-likelihood matrix with relative efficiency `r_eff`.
 pub fn loo(ll: &LogLik, r_eff: f64) -> Loo {
+    loo_counted(ll, &vec![1; ll.obs], r_eff)
+}
+
+/// [`loo`] with column i standing for `counts[i]` identical observations: elpd, p_loo and
+/// the standard error are those of the sample with every column repeated its count's
+/// times; `pointwise`, `pareto_k` and `bad_k` stay one per column.
+pub fn loo_counted(ll: &LogLik, counts: &[u64], r_eff: f64) -> Loo {
     let (s, n) = (ll.draws, ll.obs);
+    assert_eq!(counts.len(), n, "one count per column");
     let mut pointwise = Vec::with_capacity(n);
     let mut pareto_k = Vec::with_capacity(n);
     let mut lppd = 0.0;
     let mut col = vec![0.0; s];
     let mut terms = vec![0.0; s];
-    for i in 0..n {
+    for (i, &count) in counts.iter().enumerate() {
         ll.column(i, &mut col);
         let ratios: Vec<f64> = col.iter().map(|v| -v).collect();
         let sm = psis(&ratios, r_eff);
@@ -44,9 +52,13 @@ pub fn loo(ll: &LogLik, r_eff: f64) -> Loo {
         }
         pointwise.push(log_sum_exp(&terms));
         pareto_k.push(sm.k);
-        lppd += log_sum_exp(&col) - (s as f64).ln();
+        lppd += count as f64 * (log_sum_exp(&col) - (s as f64).ln());
     }
-    let elpd: f64 = pointwise.iter().sum();
+    let elpd: f64 = pointwise
+        .iter()
+        .zip(counts)
+        .map(|(v, &c)| c as f64 * v)
+        .sum();
     let k_threshold = (1.0 - 1.0 / (s as f64).log10()).min(0.7);
     let bad_k = pareto_k
         .iter()
@@ -56,11 +68,59 @@ pub fn loo(ll: &LogLik, r_eff: f64) -> Loo {
         .collect();
     Loo {
         elpd,
-        se: super::sum_se(&pointwise),
+        se: super::sum_se_counted(&pointwise, counts),
         p_loo: lppd - elpd,
         pointwise,
         pareto_k,
         k_threshold,
         bad_k,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::compare::{waic, waic_counted};
+    use rand::{Rng, SeedableRng};
+    use rand_chacha::ChaCha8Rng;
+
+    /// A column standing for c identical observations scores as c repeated columns
+    /// (every copy has the same leave-one-out predictive): elpd, p_loo, WAIC, p_waic and
+    /// both standard errors equal those of the expanded matrix.
+    #[test]
+    fn counted_columns_score_as_the_expanded_matrix() {
+        let mut rng = ChaCha8Rng::seed_from_u64(5);
+        let (draws, obs) = (400, 6);
+        let counts = [3u64, 1, 7, 2, 1, 5];
+        let values: Vec<f64> = (0..draws * obs)
+            .map(|_| -1.5 + rng.random::<f64>() * rng.random::<f64>() * 3.0)
+            .collect();
+        let ll = LogLik {
+            draws,
+            obs,
+            values: values.clone(),
+        };
+        let cols: Vec<usize> = (0..obs)
+            .flat_map(|i| std::iter::repeat_n(i, counts[i] as usize))
+            .collect();
+        let expanded = LogLik {
+            draws,
+            obs: cols.len(),
+            values: (0..draws)
+                .flat_map(|s| cols.iter().map(move |&i| (s, i)))
+                .map(|(s, i)| values[s * obs + i])
+                .collect(),
+        };
+        let (a, b) = (loo_counted(&ll, &counts, 1.0), loo(&expanded, 1.0));
+        let close = |x: f64, y: f64| (x - y).abs() < 1e-10 * y.abs().max(1.0);
+        assert!(close(a.elpd, b.elpd), "{} vs {}", a.elpd, b.elpd);
+        assert!(close(a.p_loo, b.p_loo), "{} vs {}", a.p_loo, b.p_loo);
+        assert!(close(a.se, b.se), "{} vs {}", a.se, b.se);
+        let (a, b) = (waic_counted(&ll, &counts), waic(&expanded));
+        assert!(close(a.elpd, b.elpd), "{} vs {}", a.elpd, b.elpd);
+        assert!(close(a.p_waic, b.p_waic), "{} vs {}", a.p_waic, b.p_waic);
+        assert!(close(a.se, b.se), "{} vs {}", a.se, b.se);
+        // Unit counts are the plain estimate, bit for bit.
+        assert_eq!(loo_counted(&ll, &[1; 6], 1.0), loo(&ll, 1.0));
     }
 }

@@ -7,6 +7,14 @@
 //! against the recorded SHA-256). It is on the original data scale — under
 //! `transform = "log"` the Jacobian −ln x_i is included — so runs fitted on different
 //! scales are comparable. Draws are treated as independent (relative efficiency 1).
+//!
+//! Tabulated data (`[data] weights`) have one column per row, standing for its count of
+//! identical observations: each copy has the same leave-one-out predictive, so elpd,
+//! p_loo, WAIC and their standard errors are the sums and variances over the sample with
+//! every row repeated (tested against the expanded matrix). Data recorded at a resolution
+//! are scored by the probability of each cell, ln Σ_k w_k P_k(cell), one column per cell
+//! with its count; a probability is not a density, so such runs are compared only with
+//! runs of the same resolution.
 
 pub mod loo;
 pub mod psis;
@@ -16,14 +24,15 @@ use std::path::Path;
 
 use serde::Serialize;
 
+use crate::check::recorded::fitted_edges;
 use crate::config::parse_config_str;
-use crate::dist::{ln_normal_pdf, log_sum_exp};
+use crate::dist::{ln_normal_pdf, ln_std_normal_interval, log_sum_exp};
 use crate::error::{Error, Result};
 use crate::run::Prepared;
-use crate::store::{read_run_draws, Manifest, RunLayout};
+use crate::store::{read_run_draws, DrawRow, Manifest, RunLayout};
 
-pub use self::loo::{loo, Loo};
-pub use self::waic::{waic, Waic};
+pub use self::loo::{loo, loo_counted, Loo};
+pub use self::waic::{waic, waic_counted, Waic};
 
 /// A pointwise log-likelihood matrix: `values[s * obs + i]` = ln p(x_i | θ_s).
 #[derive(Debug, Clone, PartialEq)]
@@ -51,12 +60,45 @@ pub fn sum_se(v: &[f64]) -> f64 {
     (n * var).sqrt()
 }
 
+/// √(N · Var_c(v)) for values v_i each standing for `counts[i]` observations: the
+/// [`sum_se`] of the sample with every row repeated its count's times.
+pub fn sum_se_counted(v: &[f64], counts: &[u64]) -> f64 {
+    let n: f64 = counts.iter().map(|&c| c as f64).sum();
+    let mean = v
+        .iter()
+        .zip(counts)
+        .map(|(x, &c)| c as f64 * x)
+        .sum::<f64>()
+        / n;
+    let var = v
+        .iter()
+        .zip(counts)
+        .map(|(x, &c)| c as f64 * (x - mean) * (x - mean))
+        .sum::<f64>()
+        / n;
+    (n * var).sqrt()
+}
+
 /// A run's data and log-likelihood matrix.
 #[derive(Debug, Clone)]
 pub struct RunLogLik {
     pub run: String,
     pub manifest: Manifest,
+    /// One column per distinct row (or cell) of the data.
     pub ll: LogLik,
+    /// How many observations each column stands for (frequency weights, or the count of
+    /// a cell); all 1 for a plain sample.
+    pub counts: Vec<u64>,
+    /// `[data] resolution` of the run: its columns are then log cell probabilities, one
+    /// per cell in value order, and compare only sets it beside runs of the same cells.
+    pub resolution: Option<f64>,
+}
+
+impl RunLogLik {
+    /// Observations in the data (counts summed).
+    pub fn observations(&self) -> u64 {
+        self.counts.iter().sum()
+    }
 }
 
 /// Recomputes the pointwise log-likelihood of the run in `dir` from its draws and data.
@@ -108,46 +150,62 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
             dir.display()
         )));
     }
-    if let Some(r) = prep.config.resolution {
-        return Err(Error::input(format!(
-            "{}: the run treats its values as recorded to {r} ([data] resolution); compare's \
-             pointwise log-likelihood is that of exact values and does not support such runs yet",
-            dir.display()
-        )));
-    }
-    if prep.data.counts.is_some() {
-        return Err(Error::input(format!(
-            "{}: the run uses [data] weights (frequency weights); compare works on one \
-             pointwise log-likelihood per observation and does not support weighted runs",
-            dir.display()
-        )));
-    }
-    let t = prep.config.transform;
-    let y: Vec<f64> = prep.data.z.iter().map(|&z| prep.data.to_data(z)).collect();
-    let jac: Vec<f64> = y.iter().map(|&v| t.log_jacobian_fitted(v)).collect();
-    let obs = y.len();
-    let mut values = Vec::with_capacity(draws.chains.len() * per_chain * obs);
-    let mut terms = Vec::new();
-    for c in &draws.chains {
-        for row in &c.rows[..per_chain] {
-            let lw: Vec<f64> = row.weight.iter().map(|w| w.ln()).collect();
-            for (i, &yi) in y.iter().enumerate() {
-                terms.clear();
-                terms.extend(
-                    (0..lw.len()).map(|k| lw[k] + ln_normal_pdf(yi, row.mean[k], row.sd[k])),
-                );
-                values.push(log_sum_exp(&terms) + jac[i]);
+    let rows: Vec<&DrawRow> = draws
+        .chains
+        .iter()
+        .flat_map(|c| c.rows[..per_chain].iter())
+        .collect();
+    let (values, counts) = match &prep.cells {
+        // Data recorded at a resolution: the log probability of each cell, which no
+        // transform changes, so no Jacobian.
+        Some(cells) => {
+            let (lo, hi) = fitted_edges(cells, prep.data.centre, prep.data.scale);
+            let mut values = Vec::with_capacity(rows.len() * cells.len());
+            let mut terms = Vec::new();
+            for row in &rows {
+                let lw: Vec<f64> = row.weight.iter().map(|w| w.ln()).collect();
+                for (a, b) in lo.iter().zip(&hi) {
+                    terms.clear();
+                    terms.extend((0..lw.len()).map(|k| {
+                        let (m, sd) = (row.mean[k], row.sd[k]);
+                        lw[k] + ln_std_normal_interval((a - m) / sd, (b - m) / sd)
+                    }));
+                    values.push(log_sum_exp(&terms));
+                }
             }
+            (values, cells.count.clone())
         }
-    }
+        None => {
+            let t = prep.config.transform;
+            let y: Vec<f64> = prep.data.z.iter().map(|&z| prep.data.to_data(z)).collect();
+            let jac: Vec<f64> = y.iter().map(|&v| t.log_jacobian_fitted(v)).collect();
+            let mut values = Vec::with_capacity(rows.len() * y.len());
+            let mut terms = Vec::new();
+            for row in &rows {
+                let lw: Vec<f64> = row.weight.iter().map(|w| w.ln()).collect();
+                for (i, &yi) in y.iter().enumerate() {
+                    terms.clear();
+                    terms.extend(
+                        (0..lw.len()).map(|k| lw[k] + ln_normal_pdf(yi, row.mean[k], row.sd[k])),
+                    );
+                    values.push(log_sum_exp(&terms) + jac[i]);
+                }
+            }
+            let counts = prep.data.counts.clone().unwrap_or_else(|| vec![1; y.len()]);
+            (values, counts)
+        }
+    };
+    let obs = counts.len();
     Ok(RunLogLik {
         run: dir.display().to_string(),
         manifest,
         ll: LogLik {
-            draws: draws.chains.len() * per_chain,
+            draws: rows.len(),
             obs,
             values,
         },
+        counts,
+        resolution: prep.config.resolution,
     })
 }
 
@@ -176,6 +234,12 @@ pub fn diff_se(a: &[f64], b: &[f64]) -> f64 {
     sum_se(&d)
 }
 
+/// [`diff_se`] with row i standing for `counts[i]` observations.
+pub fn diff_se_counted(a: &[f64], b: &[f64], counts: &[u64]) -> f64 {
+    let d: Vec<f64> = a.iter().zip(b).map(|(x, y)| x - y).collect();
+    sum_se_counted(&d, counts)
+}
+
 /// Scores every run and ranks them by elpd_loo; checks they were fitted to the same data.
 pub fn compare(runs: &[RunLogLik]) -> Result<Vec<Scored>> {
     if runs.len() < 2 {
@@ -184,16 +248,39 @@ pub fn compare(runs: &[RunLogLik]) -> Result<Vec<Scored>> {
     let first = &runs[0].manifest.data;
     for r in &runs[1..] {
         let d = &r.manifest.data;
-        if d.sha256 != first.sha256 || d.column != first.column || r.ll.obs != runs[0].ll.obs {
+        if r.resolution != runs[0].resolution {
+            let say = |v: Option<f64>| {
+                v.map_or("as exact values (a density)".to_string(), |x| {
+                    format!("as recorded to {x} (cell probabilities)")
+                })
+            };
+            return Err(Error::input(format!(
+                "{} scores the data {} and {} {}; the two are not on one scale, so compare \
+                 needs runs with the same [data] resolution",
+                runs[0].run,
+                say(runs[0].resolution),
+                r.run,
+                say(r.resolution)
+            )));
+        }
+        if d.sha256 != first.sha256 || d.column != first.column || r.counts != runs[0].counts {
             return Err(Error::input(format!(
                 "{} and {} were not fitted to the same data (file SHA-256 {} column \"{}\" n {} vs {} column \"{}\" n {})",
-                runs[0].run, r.run, first.sha256, first.column, runs[0].ll.obs, d.sha256, d.column, r.ll.obs
+                runs[0].run,
+                r.run,
+                first.sha256,
+                first.column,
+                runs[0].observations(),
+                d.sha256,
+                d.column,
+                r.observations()
             )));
         }
     }
+    let counts = &runs[0].counts;
     let scored: Vec<(Loo, Waic)> = runs
         .iter()
-        .map(|r| (loo(&r.ll, 1.0), waic(&r.ll)))
+        .map(|r| (loo_counted(&r.ll, counts, 1.0), waic_counted(&r.ll, counts)))
         .collect();
     let best_loo = (0..runs.len())
         .max_by(|&a, &b| scored[a].0.elpd.total_cmp(&scored[b].0.elpd))
@@ -215,9 +302,9 @@ pub fn compare(runs: &[RunLogLik]) -> Result<Vec<Scored>> {
                 waic: w.clone(),
                 rank: 0,
                 elpd_diff_loo: scored[best_loo].0.elpd - l.elpd,
-                se_diff_loo: diff_se(&scored[best_loo].0.pointwise, &l.pointwise),
+                se_diff_loo: diff_se_counted(&scored[best_loo].0.pointwise, &l.pointwise, counts),
                 elpd_diff_waic: scored[best_waic].1.elpd - w.elpd,
-                se_diff_waic: diff_se(&scored[best_waic].1.pointwise, &w.pointwise),
+                se_diff_waic: diff_se_counted(&scored[best_waic].1.pointwise, &w.pointwise, counts),
             }
         })
         .collect();

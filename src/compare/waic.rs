@@ -26,12 +26,20 @@ pub struct Waic {
 }
 
 pub fn waic(ll: &LogLik) -> Waic {
+    waic_counted(ll, &vec![1; ll.obs])
+}
+
+/// [`waic`] with column i standing for `counts[i]` identical observations (sums and the
+/// standard error over the sample with every column repeated; `pointwise` and
+/// `high_variance` stay one per column).
+pub fn waic_counted(ll: &LogLik, counts: &[u64]) -> Waic {
     let (s, n) = (ll.draws, ll.obs);
+    assert_eq!(counts.len(), n, "one count per column");
     let mut col = vec![0.0; s];
     let mut pointwise = Vec::with_capacity(n);
     let mut p_waic = 0.0;
     let mut high_variance = Vec::new();
-    for i in 0..n {
+    for (i, &count) in counts.iter().enumerate() {
         ll.column(i, &mut col);
         let lppd = log_sum_exp(&col) - (s as f64).ln();
         let mean = col.iter().sum::<f64>() / s as f64;
@@ -39,12 +47,16 @@ pub fn waic(ll: &LogLik) -> Waic {
         if var > MAX_POINTWISE_VAR {
             high_variance.push(i + 1);
         }
-        p_waic += var;
+        p_waic += count as f64 * var;
         pointwise.push(lppd - var);
     }
     Waic {
-        elpd: pointwise.iter().sum(),
-        se: super::sum_se(&pointwise),
+        elpd: pointwise
+            .iter()
+            .zip(counts)
+            .map(|(v, &c)| c as f64 * v)
+            .sum(),
+        se: super::sum_se_counted(&pointwise, counts),
         p_waic,
         pointwise,
         high_variance,

@@ -219,7 +219,13 @@ pub fn execute(
     let units = Units {
         centre: prep.data.centre,
         scale: prep.data.scale,
-        n: prep.data.summary.n,
+        // A density in standard units is 1/scale times the density in data units; a cell
+        // probability is the same on both, so the censored log-likelihood needs no shift.
+        n: if prep.cells.is_some() {
+            0
+        } else {
+            prep.data.summary.n
+        },
     };
     let x = &prep.data.z;
     let multi = MultiProgress::with_draw_target(if opts.quiet {
