@@ -2,7 +2,7 @@
 //! observations inside the bars), with Freedman–Diaconis bin widths
 //! (Freedman & Diaconis 1981: width 2 · IQR · n^(−1/3)).
 
-use crate::summary::quantile_sorted;
+use super::observations::{Observations, SortedObservations};
 
 /// Bins of equal width from `start`; `density[i]` = count_i / (n · width).
 #[derive(Debug, Clone, PartialEq)]
@@ -19,12 +19,15 @@ const MAX_BINS: usize = 80;
 impl Histogram {
     /// Bins spanning the sample's range (n ≥ 2, not constant).
     pub fn of(x: &[f64]) -> Histogram {
-        let mut s = x.to_vec();
-        s.sort_by(f64::total_cmp);
+        Self::of_sorted(&Observations::new(x.to_vec(), None, false).sorted())
+    }
+
+    /// [`Histogram::of`] the expanded sample of `s`, from its sorted (value, count) runs.
+    pub fn of_sorted(s: &SortedObservations) -> Histogram {
         let n = s.len();
-        let (lo, hi) = (s[0], s[n - 1]);
+        let (lo, hi) = (s.at(0), s.at(n - 1));
         let range = hi - lo;
-        let iqr = quantile_sorted(&s, 0.75) - quantile_sorted(&s, 0.25);
+        let iqr = s.quantile(0.75) - s.quantile(0.25);
         let fd = 2.0 * iqr * (n as f64).powf(-1.0 / 3.0);
         let bins = if fd > 0.0 && (range / fd).is_finite() {
             (range / fd).ceil() as usize
@@ -35,9 +38,9 @@ impl Histogram {
         .clamp(MIN_BINS, MAX_BINS);
         let width = range / bins as f64;
         let mut counts = vec![0usize; bins];
-        for &v in &s {
+        for &(v, c) in &s.table {
             let i = (((v - lo) / width).floor() as usize).min(bins - 1);
-            counts[i] += 1;
+            counts[i] += c as usize;
         }
         Histogram {
             start: lo,

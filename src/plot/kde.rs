@@ -2,6 +2,7 @@
 //! rule-of-thumb bandwidth h = 0.9 · min(s, IQR / 1.34) · n^(−1/5) (Silverman 1986,
 //! "Density Estimation for Statistics and Data Analysis", eq. 3.31).
 
+use super::observations::Observations;
 use crate::dist::LN_SQRT_2PI;
 use crate::summary::quantile_sorted;
 
@@ -16,6 +17,36 @@ pub fn silverman_bandwidth(x: &[f64]) -> f64 {
     let iqr = quantile_sorted(&s, 0.75) - quantile_sorted(&s, 0.25);
     let spread = if iqr > 0.0 { sd.min(iqr / 1.34) } else { sd };
     0.9 * spread * n.powf(-0.2)
+}
+
+/// [`silverman_bandwidth`] of counted observations, without expanding them: the sums run
+/// over the same sequence of values, so the result has the same bits.
+pub fn silverman_bandwidth_of(x: &Observations) -> f64 {
+    let n = x.len() as f64;
+    let mean = x.iter().sum::<f64>() / n;
+    let sd = (x.iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / (n - 1.0)).sqrt();
+    let s = x.sorted();
+    let iqr = s.quantile(0.75) - s.quantile(0.25);
+    let spread = if iqr > 0.0 { sd.min(iqr / 1.34) } else { sd };
+    0.9 * spread * n.powf(-0.2)
+}
+
+/// [`gaussian_kde`] of counted observations: each entry's term is computed once and added
+/// as many times as its count, in order, so the result has the same bits as on the
+/// expanded sample.
+pub fn gaussian_kde_of(x: &Observations, h: f64, grid: &[f64]) -> Vec<f64> {
+    let n = x.len() as f64;
+    let norm = -(n.ln() + h.ln() + LN_SQRT_2PI);
+    grid.iter()
+        .map(|&g| {
+            x.entries()
+                .flat_map(|(xi, c)| {
+                    let z = (g - xi) / h;
+                    std::iter::repeat_n((norm - 0.5 * z * z).exp(), c as usize)
+                })
+                .sum()
+        })
+        .collect()
 }
 
 /// The kernel estimate with bandwidth `h` at each point of `grid`.

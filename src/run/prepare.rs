@@ -2,14 +2,15 @@
 //! every default, and map the prior to standard units. Nothing is written here, so bad
 //! input never leaves a run directory behind.
 
+use std::io::Read;
 use std::path::Path;
 
 use sha2::{Digest, Sha256};
 
 use crate::config::{parse_config_str, resolve, RunConfig};
 use crate::data::{
-    load_weighted, load_weighted_from_reader, Cells, DataSummary, Recording, Standardised,
-    Transform,
+    load_weighted_from_reader, scan_rows, Cells, DataSummary, HashingReader, Recording,
+    Standardised, SupportCheck, Tally, Transform,
 };
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
@@ -46,6 +47,98 @@ fn tabulate(values: &[f64], counts: Option<&[u64]>) -> (Vec<f64>, Option<Vec<u64
         }
     }
     (out.0, Some(out.1))
+}
+
+/// The sample as the run uses it: one entry per row for exact values, one per distinct
+/// value (ascending, with its count) for values recorded at a resolution.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Loaded {
+    /// Data units.
+    pub values: Vec<f64>,
+    pub counts: Option<Vec<u64>>,
+    /// Empty cells dropped under `missing = "drop"`.
+    pub dropped: usize,
+    /// `values` on the fitted scale.
+    pub fitted: Vec<f64>,
+    /// How the values were recorded (detected on the rows as recorded).
+    pub recording: Recording,
+}
+
+/// Loads, checks and (at a resolution) tabulates the data of `config` from `reader`;
+/// `loader_origin` names the data in the loader's messages, `data_origin` in the others.
+///
+/// Exact values are held row by row, as the sampler needs them. Values recorded at a
+/// resolution are streamed: each row is checked (cells, weights, the transform's support,
+/// naming its line) and counted into its distinct value, so memory grows with the distinct
+/// values, not the rows; the result equals tabulating the rows held in memory, bit for bit.
+pub fn load_sample<R: Read>(
+    reader: R,
+    config: &RunConfig,
+    loader_origin: &str,
+    data_origin: &str,
+) -> Result<Loaded> {
+    let Some(resolution) = config.resolution else {
+        let sample = load_weighted_from_reader(
+            reader,
+            loader_origin,
+            &config.column,
+            config.freq_weights.as_deref(),
+            config.missing,
+        )?;
+        let fitted =
+            config
+                .transform
+                .apply(&sample.values, &sample.origins, data_origin, &config.column)?;
+        let recording = Recording::detect(&sample.values, sample.counts.as_deref(), None);
+        return Ok(Loaded {
+            values: sample.values,
+            counts: sample.counts,
+            dropped: sample.dropped,
+            fitted,
+            recording,
+        });
+    };
+    let mut support = SupportCheck::new(config.transform, Some(resolution));
+    let mut tally = Tally::new();
+    let scan = scan_rows(
+        reader,
+        loader_origin,
+        &config.column,
+        config.freq_weights.as_deref(),
+        config.missing,
+        |r| {
+            support.push(r.value, r.line, r.row);
+            tally.add(r.value, r.count).ok_or_else(|| {
+                Error::input(format!(
+                    "{loader_origin}: line {} (data row {}): the frequency weights add up to more \
+                     than {} observations",
+                    r.line,
+                    r.row,
+                    u64::MAX
+                ))
+            })
+        },
+    )?;
+    support.finish(data_origin, &config.column)?;
+    let (distinct, per_value) = tally.into_table();
+    // On the values as recorded (data units); the detector tabulates its input, so the
+    // table gives what the rows would.
+    let recording = Recording::detect(&distinct, Some(&per_value), Some(resolution));
+    // Recorded at a resolution, the sample is its table of distinct values: rows given one
+    // by one and as (value, count) then give the same run bit for bit. (The tally keeps
+    // −0.0 and 0.0 apart; this merges them as it merges rows.)
+    let (values, counts) = tabulate(&distinct, Some(&per_value));
+    let fitted = values
+        .iter()
+        .map(|&v| config.transform.fitted_value(v, Some(resolution)))
+        .collect();
+    Ok(Loaded {
+        values,
+        counts,
+        dropped: scan.dropped,
+        fitted,
+        recording,
+    })
 }
 
 /// Lower-case hex SHA-256 of `bytes`.
@@ -88,60 +181,47 @@ impl Prepared {
         let raw = parse_config_str(text, origin)?;
         // Check everything that does not depend on the data before touching the data.
         let pre = resolve(&raw, text, origin, dir, None)?;
+        let data_origin = pre.data_file.display().to_string();
         let (sample, bytes_hash, abs) = match data_bytes {
             Some(b) => (
-                load_weighted_from_reader(
-                    b,
-                    &pre.data_file_text,
-                    &pre.column,
-                    pre.freq_weights.as_deref(),
-                    pre.missing,
-                )?,
+                load_sample(b, &pre, &pre.data_file_text, &data_origin)?,
                 sha256_hex(b),
                 pre.data_file_text.clone(),
             ),
             None => {
-                let bytes = std::fs::read(&pre.data_file).map_err(|e| {
+                let cannot_read = |e: &dyn std::fmt::Display| {
                     Error::input(format!(
                         "{origin}: [data] file: cannot read {}: {e}",
                         pre.data_file.display()
                     ))
-                })?;
-                let s = load_weighted(
-                    &pre.data_file,
-                    &pre.column,
-                    pre.freq_weights.as_deref(),
-                    pre.missing,
-                )?;
+                };
+                let file = std::fs::File::open(&pre.data_file).map_err(|e| cannot_read(&e))?;
+                // The bytes are hashed as the loader reads them: the file is read once and
+                // never held whole.
+                let mut reader = HashingReader::new(file);
+                let s =
+                    load_sample(&mut reader, &pre, &data_origin, &data_origin).map_err(|e| {
+                        match reader.error() {
+                            Some(io) => cannot_read(&io),
+                            None => e,
+                        }
+                    })?;
+                let hash = reader.finish().map_err(|e| cannot_read(&e))?;
                 let abs = std::fs::canonicalize(&pre.data_file)
                     .unwrap_or_else(|_| pre.data_file.clone())
                     .display()
                     .to_string();
-                (s, sha256_hex(&bytes), abs)
+                (s, hash, abs)
             }
         };
-        let data_origin = pre.data_file.display().to_string();
-        let mut fitted = pre.transform.apply_recorded(
-            &sample.values,
-            &sample.origins,
-            &data_origin,
-            &pre.column,
-            pre.resolution,
-        )?;
-        let mut sample = sample;
-        // On the values as recorded (data units), before anything is tabulated.
-        let recording = Recording::detect(&sample.values, sample.counts.as_deref(), pre.resolution);
-        if pre.resolution.is_some() {
-            // Recorded at a resolution, the sample is its table of distinct values: rows
-            // given one by one and as (value, count) then give the same run bit for bit.
-            (sample.values, sample.counts) = tabulate(&sample.values, sample.counts.as_deref());
-            fitted = sample
-                .values
-                .iter()
-                .map(|&v| pre.transform.fitted_value(v, pre.resolution))
-                .collect();
-        }
-        let data = Standardised::with_counts(&fitted, sample.counts.clone(), &data_origin)?;
+        let Loaded {
+            values,
+            counts,
+            dropped,
+            fitted,
+            recording,
+        } = sample;
+        let data = Standardised::with_counts(&fitted, counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
         if pre.transform != Transform::None {
@@ -155,8 +235,8 @@ impl Prepared {
                 origin,
                 dir,
                 Some(&DataSummary::of_counts(
-                    &sample.values,
-                    sample.counts.as_deref(),
+                    &values,
+                    counts.as_deref(),
                     &data_origin,
                 )?),
             )?;
@@ -185,8 +265,8 @@ impl Prepared {
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let cells = config.resolution.map(|r| {
             Cells::from_rows(
-                &sample.values,
-                sample.counts.as_deref(),
+                &values,
+                counts.as_deref(),
                 r,
                 config.transform,
                 data.centre,
@@ -200,7 +280,7 @@ impl Prepared {
             column: config.column.clone(),
             sha256: bytes_hash,
             n: s.n,
-            dropped: sample.dropped,
+            dropped,
             mean: s.mean,
             sd: s.sd,
             min: s.min,
