@@ -203,3 +203,47 @@ pub fn cdf_figure(inp: &RunInputs) -> Result<Option<String>> {
     let cdf = StoredCdf::read(&path, &inp.bands.levels)?;
     cdf_svg(inp, &cdf).map(Some)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plot::observations::Observations;
+
+    #[test]
+    fn the_ecdf_line_is_the_same_with_one_step_per_value() {
+        let obs = Observations::new(
+            vec![3.0, 1.0, 2.0, 5.0, 0.5],
+            Some(vec![2, 3, 1, 4, 2]),
+            false,
+        );
+        let (x0, x1) = (0.8, 4.0);
+        // Two points per observation, as the figure was drawn from the expanded sample.
+        let mut x: Vec<f64> = obs.iter().collect();
+        x.sort_by(f64::total_cmp);
+        let n = x.len() as f64;
+        let below = x.partition_point(|&v| v < x0);
+        let mut old = vec![(x0, below as f64 / n)];
+        for (i, &v) in x.iter().enumerate().filter(|&(_, &v)| v >= x0 && v <= x1) {
+            old.push((v, i as f64 / n));
+            old.push((v, (i + 1) as f64 / n));
+        }
+        old.push((x1, old[old.len() - 1].1));
+        let sorted = obs.sorted();
+        assert_eq!(ecdf_steps(&sorted, false, (x0, x1)), old);
+        // One step per value: the same points with the repeats inside a vertical run
+        // left out, so the same line.
+        let one = ecdf_steps(&sorted, true, (x0, x1));
+        assert_eq!(one.len(), 2 + 2 * 3);
+        let mut dedup = old.clone();
+        dedup.dedup();
+        let inner: Vec<(f64, f64)> = dedup
+            .iter()
+            .enumerate()
+            .filter(|&(i, p)| {
+                i == 0 || i + 1 == dedup.len() || dedup[i - 1].0 != p.0 || dedup[i + 1].0 != p.0
+            })
+            .map(|(_, &p)| p)
+            .collect();
+        assert_eq!(one, inner);
+    }
+}

@@ -72,4 +72,44 @@ mod tests {
         let area: f64 = h.bars().map(|(l, r, d)| (r - l) * d).sum();
         assert!((area - 1.0).abs() < 1e-12, "area {area}");
     }
+
+    #[test]
+    fn counted_runs_give_the_histogram_of_the_expanded_sample() {
+        // The histogram as computed on an expanded sample before counted observations
+        // existed (sort, quartiles of the sorted vector, one count per value).
+        fn expanded(x: &[f64]) -> Histogram {
+            let mut s = x.to_vec();
+            s.sort_by(f64::total_cmp);
+            let n = s.len();
+            let (lo, hi) = (s[0], s[n - 1]);
+            let q = crate::summary::quantile_sorted;
+            let iqr = q(&s, 0.75) - q(&s, 0.25);
+            let fd = 2.0 * iqr * (n as f64).powf(-1.0 / 3.0);
+            let bins = if fd > 0.0 && ((hi - lo) / fd).is_finite() {
+                ((hi - lo) / fd).ceil() as usize
+            } else {
+                (n as f64).log2().ceil() as usize + 1
+            }
+            .clamp(MIN_BINS, MAX_BINS);
+            let width = (hi - lo) / bins as f64;
+            let mut counts = vec![0usize; bins];
+            for &v in &s {
+                counts[(((v - lo) / width).floor() as usize).min(bins - 1)] += 1;
+            }
+            Histogram {
+                start: lo,
+                width,
+                density: counts
+                    .iter()
+                    .map(|&c| c as f64 / (n as f64 * width))
+                    .collect(),
+            }
+        }
+        let values: Vec<f64> = (0..150).map(|i| ((i * 53) % 97) as f64 / 10.0).collect();
+        let counts: Vec<u64> = (0..150).map(|i| (i % 4) as u64).collect();
+        let obs = Observations::new(values, Some(counts), true);
+        let x: Vec<f64> = obs.iter().collect();
+        assert_eq!(Histogram::of_sorted(&obs.sorted()), expanded(&x));
+        assert_eq!(Histogram::of(&x), expanded(&x));
+    }
 }
