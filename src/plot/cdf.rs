@@ -86,10 +86,10 @@ fn ecdf_steps(
     (x0, x1): (f64, f64),
 ) -> Vec<(f64, f64)> {
     let n = obs.len().max(1) as f64;
-    let below: u64 = obs.table.iter().filter(|e| e.0 < x0).map(|e| e.1).sum();
+    let below: u64 = obs.runs().filter(|e| e.0 < x0).map(|e| e.1).sum();
     let mut steps = vec![(x0, below as f64 / n)];
     let mut start = 0usize;
-    for &(v, c) in &obs.table {
+    for (v, c) in obs.runs() {
         let c = c as usize;
         if v >= x0 && v <= x1 {
             if one_step_per_value {

@@ -38,7 +38,7 @@ impl Histogram {
         .clamp(MIN_BINS, MAX_BINS);
         let width = range / bins as f64;
         let mut counts = vec![0usize; bins];
-        for &(v, c) in &s.table {
+        for (v, c) in s.runs() {
             let i = (((v - lo) / width).floor() as usize).min(bins - 1);
             counts[i] += c as usize;
         }

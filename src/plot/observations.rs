@@ -67,9 +67,21 @@ impl Observations {
     }
 
     /// The entries sorted by value (`f64::total_cmp`, stable), zero counts left out: their
-    /// expansion is the sorted sample.
+    /// expansion is the sorted sample. Uncounted observations take 8 bytes each, as a
+    /// sorted copy would.
     pub fn sorted(&self) -> SortedObservations {
-        let mut table: Vec<(f64, u64)> = self.entries().filter(|&(_, c)| c > 0).collect();
+        let Some(counts) = &self.counts else {
+            let mut values = self.values.clone();
+            values.sort_by(f64::total_cmp);
+            return SortedObservations { values, end: None };
+        };
+        let mut table: Vec<(f64, u64)> = self
+            .values
+            .iter()
+            .zip(counts)
+            .map(|(&v, &c)| (v, c))
+            .filter(|&(_, c)| c > 0)
+            .collect();
         table.sort_by(|a, b| a.0.total_cmp(&b.0));
         let mut end = Vec::with_capacity(table.len());
         let mut acc = 0usize;
@@ -77,35 +89,56 @@ impl Observations {
             acc += c as usize;
             end.push(acc);
         }
-        SortedObservations { table, end }
+        SortedObservations {
+            values: table.into_iter().map(|e| e.0).collect(),
+            end: Some(end),
+        }
     }
 }
 
-/// The sorted sample as (value, count) runs with their cumulative ends.
+/// The sorted sample as runs of equal values: each value once per observation, or with
+/// the cumulative count of its run.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SortedObservations {
-    pub table: Vec<(f64, u64)>,
-    /// `end[j]`: observations in entries 0..=j.
-    end: Vec<usize>,
+    values: Vec<f64>,
+    /// `end[j]`: observations in runs 0..=j; `None`: one observation a run.
+    end: Option<Vec<usize>>,
 }
 
 impl SortedObservations {
     /// Number of observations.
     pub fn len(&self) -> usize {
-        self.end.last().copied().unwrap_or(0)
+        match &self.end {
+            Some(e) => e.last().copied().unwrap_or(0),
+            None => self.values.len(),
+        }
     }
 
     pub fn is_empty(&self) -> bool {
         self.len() == 0
     }
 
-    /// The i-th smallest observation (0-based; i < len).
-    pub fn at(&self, i: usize) -> f64 {
-        self.table[self.end.partition_point(|&e| e <= i)].0
+    /// (value, count) of each run, ascending (one value may come in more than one run).
+    pub fn runs(&self) -> impl Iterator<Item = (f64, u64)> + '_ {
+        self.values.iter().enumerate().map(|(j, &v)| {
+            let c = match &self.end {
+                Some(e) => e[j] - if j == 0 { 0 } else { e[j - 1] },
+                None => 1,
+            };
+            (v, c as u64)
+        })
     }
 
-    /// [`crate::summary::quantile_sorted`] of the expanded sample, from the runs: the same order
-    /// statistics and the same arithmetic, so the same bits.
+    /// The i-th smallest observation (0-based; i < len).
+    pub fn at(&self, i: usize) -> f64 {
+        match &self.end {
+            Some(e) => self.values[e.partition_point(|&x| x <= i)],
+            None => self.values[i],
+        }
+    }
+
+    /// [`crate::summary::quantile_sorted`] of the expanded sample, from the runs: the same
+    /// order statistics and the same arithmetic, so the same bits.
     pub fn quantile(&self, p: f64) -> f64 {
         let n = self.len();
         let h = (n - 1) as f64 * p;
@@ -138,12 +171,15 @@ mod tests {
         for (i, &v) in sorted.iter().enumerate() {
             assert_eq!(s.at(i), v);
         }
+        let plain = Observations::new(x.clone(), None, false).sorted();
+        assert_eq!(plain.len(), 6);
         for p in [0.0, 0.1, 0.25, 0.5, 0.75, 0.9, 1.0] {
-            assert_eq!(
-                s.quantile(p).to_bits(),
-                quantile_sorted(&sorted, p).to_bits(),
-                "{p}"
-            );
+            let want = quantile_sorted(&sorted, p).to_bits();
+            assert_eq!(s.quantile(p).to_bits(), want, "{p}");
+            assert_eq!(plain.quantile(p).to_bits(), want, "{p}");
         }
+        let runs: Vec<(f64, u64)> = s.runs().collect();
+        assert_eq!(runs, vec![(-1.0, 2), (2.5, 3), (2.5, 1)]);
+        assert_eq!(plain.runs().map(|r| r.1).sum::<u64>(), 6);
     }
 }
