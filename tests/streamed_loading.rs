@@ -226,6 +226,9 @@ fn a_run_on_streamed_data_writes_the_same_bytes_as_on_rows_held_in_memory() {
     let streamed = Prepared::from_config_file(&dir.join("run.toml")).unwrap();
     let in_memory = Prepared::from_text_in_memory(text, "run.toml", &dir, None).unwrap();
     assert_eq!(format!("{streamed:?}"), format!("{in_memory:?}"));
+    // The SHA-256 taken while streaming is that of the whole file.
+    let bytes = std::fs::read(dir.join("d.csv")).unwrap();
+    assert_eq!(streamed.record.sha256, mixband::run::sha256_hex(&bytes));
     let stop = AtomicBool::new(false);
     let opts = JobOptions {
         exec: ExecOptions {

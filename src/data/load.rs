@@ -2,6 +2,8 @@
 //! NaN and infinities are rejected with their row number; empty cells follow the
 //! configured missing-value policy. An optional second column holds integer frequency
 //! weights (`[data] weights`): each cell a non-negative integer, rows of weight 0 dropped.
+//! [`scan_rows`] makes these checks one row at a time and hands each accepted row to the
+//! caller, holding nothing per row; [`load_weighted_from_reader`] collects the rows.
 
 use std::io::Read;
 use std::path::Path;
