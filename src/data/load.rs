@@ -2,6 +2,8 @@
 //! NaN and infinities are rejected with their row number; empty cells follow the
 //! configured missing-value policy. An optional second column holds integer frequency
 //! weights (`[data] weights`): each cell a non-negative integer, rows of weight 0 dropped.
+//! [`scan_rows`] makes these checks one row at a time and hands each accepted row to the
+//! caller, holding nothing per row; [`load_weighted_from_reader`] collects the rows.
 
 use std::io::Read;
 use std::path::Path;
@@ -61,6 +63,61 @@ pub fn load_weighted_from_reader<R: Read>(
     weights: Option<&str>,
     missing: MissingPolicy,
 ) -> Result<Sample> {
+    let mut counts = Vec::new();
+    let mut values = Vec::new();
+    let mut origins = Vec::new();
+    let scan = scan_rows(reader, origin, column, weights, missing, |r| {
+        if weights.is_some() {
+            counts.push(r.count);
+        }
+        values.push(r.value);
+        origins.push((r.line, r.row));
+        Ok(())
+    })?;
+    Ok(Sample {
+        values,
+        dropped: scan.dropped,
+        origins,
+        counts: weights.map(|_| counts),
+        zero_weight: scan.zero_weight,
+    })
+}
+
+/// One accepted row: its value, its frequency weight (1 without a weights column; never
+/// 0) and where it is in the file.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Row {
+    pub value: f64,
+    pub count: u64,
+    /// Line of the file (1 is the header).
+    pub line: u64,
+    /// Data row, counting from 1 (empty and zero-weight rows included).
+    pub row: usize,
+}
+
+/// What a pass over the rows left out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct Scan {
+    /// Empty cells dropped under `missing = "drop"`.
+    pub dropped: usize,
+    /// Rows dropped because their weight is 0.
+    pub zero_weight: usize,
+    /// Rows handed to the visitor.
+    pub rows: usize,
+}
+
+/// Reads the CSV row by row with one reused record, checks every cell (the same checks
+/// and messages as [`load_weighted_from_reader`], which is built on it) and hands each
+/// accepted row to `visit` in file order, holding nothing per row. An error from `visit`
+/// stops the pass. A column with no accepted row is an error.
+pub fn scan_rows<R: Read>(
+    reader: R,
+    origin: &str,
+    column: &str,
+    weights: Option<&str>,
+    missing: MissingPolicy,
+    mut visit: impl FnMut(Row) -> Result<()>,
+) -> Result<Scan> {
     let mut rdr = csv::ReaderBuilder::new()
         .has_headers(true)
         .flexible(false)
@@ -75,13 +132,9 @@ pub fn load_weighted_from_reader<R: Read>(
         Some(w) => Some(find_column(&headers, origin, w)?),
         None => None,
     };
-    let mut counts = Vec::new();
-    let mut zero_weight = 0usize;
-    let mut values = Vec::new();
-    let mut dropped = 0;
+    let mut scan = Scan::default();
     let mut record = csv::StringRecord::new();
     let mut row = 0usize;
-    let mut origins = Vec::new();
     loop {
         match rdr.read_record(&mut record) {
             Ok(false) => break,
@@ -107,7 +160,7 @@ pub fn load_weighted_from_reader<R: Read>(
         };
         if cell.is_empty() {
             empty(format!("column \"{column}\""))?;
-            dropped += 1;
+            scan.dropped += 1;
             continue;
         }
         let v: f64 = cell.parse().map_err(|_| {
@@ -121,14 +174,15 @@ pub fn load_weighted_from_reader<R: Read>(
                 "{origin}: line {line} (data row {row}): column \"{column}\" holds {cell}; only finite numbers are allowed"
             )));
         }
+        let mut count = 1;
         if let (Some(wi), Some(wname)) = (widx, weights) {
             let wcell = record.get(wi).unwrap_or("").trim();
             if wcell.is_empty() {
                 empty(format!("weights column \"{wname}\""))?;
-                dropped += 1;
+                scan.dropped += 1;
                 continue;
             }
-            let c: u64 = wcell
+            count = wcell
                 .strip_prefix('+')
                 .unwrap_or(wcell)
                 .parse()
@@ -141,16 +195,21 @@ pub fn load_weighted_from_reader<R: Read>(
                         truncate(wcell)
                     ))
                 })?;
-            if c == 0 {
-                zero_weight += 1;
+            if count == 0 {
+                scan.zero_weight += 1;
                 continue;
             }
-            counts.push(c);
         }
-        values.push(v);
-        origins.push((line, row));
+        visit(Row {
+            value: v,
+            count,
+            line,
+            row,
+        })?;
+        scan.rows += 1;
     }
-    if values.is_empty() {
+    if scan.rows == 0 {
+        let (dropped, zero_weight) = (scan.dropped, scan.zero_weight);
         return Err(Error::input(format!(
             "{origin}: column \"{column}\" holds no observations{}",
             if dropped > 0 || zero_weight > 0 {
@@ -160,13 +219,7 @@ pub fn load_weighted_from_reader<R: Read>(
             }
         )));
     }
-    Ok(Sample {
-        values,
-        dropped,
-        origins,
-        counts: weights.map(|_| counts),
-        zero_weight,
-    })
+    Ok(scan)
 }
 
 /// Position of the column named `column` in `headers`; it must occur exactly once.

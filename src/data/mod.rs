@@ -3,15 +3,20 @@
 //! when it was recorded at a resolution, and how it was recorded (lattice, heaping).
 
 mod cells;
+mod digest;
 mod lattice;
 mod load;
 mod standardise;
+mod tally;
 mod transform;
 
 pub use cells::Cells;
+pub use digest::HashingReader;
 pub use lattice::{Heaping, Lattice, Recording};
 pub use load::{
-    load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, Sample,
+    load_column, load_column_from_reader, load_weighted, load_weighted_from_reader, scan_rows, Row,
+    Sample, Scan,
 };
 pub use standardise::{DataSummary, Standardised};
-pub use transform::{Bounds, Transform, TransformKind};
+pub use tally::Tally;
+pub use transform::{Bounds, SupportCheck, Transform, TransformKind};

@@ -270,54 +270,95 @@ impl Transform {
         if self == Transform::None {
             return Ok(values.to_vec());
         }
-        let on_bound_ok = resolution.is_some() && matches!(self, Transform::Logit(_));
-        let accepted = |v: f64| match self {
-            Transform::Logit(b) if on_bound_ok => b.lower <= v && v <= b.upper,
-            _ => self.in_support(v),
-        };
-        let bad: Vec<String> = values
-            .iter()
-            .zip(origins)
-            .filter(|(&v, _)| !accepted(v))
-            .map(|(v, (line, row))| format!("line {line} (data row {row}) holds {v}"))
-            .collect();
-        if !bad.is_empty() {
-            let more = if bad.len() > LIST_AT_MOST {
-                format!(", and {} more", bad.len() - LIST_AT_MOST)
-            } else {
-                String::new()
-            };
-            let (needs, what) = match self {
-                Transform::Logit(b) if on_bound_ok => (
-                    format!(
-                        "[data] transform = \"logit\" needs values from [data] lower = {} to upper = {}",
-                        b.lower, b.upper
-                    ),
-                    "beyond a bound",
-                ),
-                Transform::Logit(b) => (
-                    format!(
-                        "[data] transform = \"logit\" needs values strictly between [data] lower = {} and \
-                         upper = {} (values on a bound are accepted only with [data] resolution set)",
-                        b.lower, b.upper
-                    ),
-                    "on or beyond a bound",
-                ),
-                _ => (
-                    "[data] transform = \"log\" needs positive values".to_string(),
-                    "non-positive",
-                ),
-            };
-            return Err(Error::input(format!(
-                "{origin}: {needs}, but column \"{column}\" has {} {what}: {}{more}",
-                bad.len(),
-                bad[..bad.len().min(LIST_AT_MOST)].join("; ")
-            )));
+        let mut check = SupportCheck::new(self, resolution);
+        for (&v, &(line, row)) in values.iter().zip(origins) {
+            check.push(v, line, row);
         }
+        check.finish(origin, column)?;
         Ok(values
             .iter()
             .map(|&v| self.fitted_value(v, resolution))
             .collect())
+    }
+}
+
+/// The check of [`Transform::apply_recorded`] made one row at a time, for rows that are
+/// not kept: it holds the first [`LIST_AT_MOST`] offending rows (all its message names)
+/// and a count of the rest.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SupportCheck {
+    transform: Transform,
+    on_bound_ok: bool,
+    listed: Vec<String>,
+    bad: usize,
+}
+
+impl SupportCheck {
+    /// For values recorded at `resolution` (None: exact) fitted under `transform`.
+    pub fn new(transform: Transform, resolution: Option<f64>) -> SupportCheck {
+        SupportCheck {
+            transform,
+            on_bound_ok: resolution.is_some() && matches!(transform, Transform::Logit(_)),
+            listed: Vec::new(),
+            bad: 0,
+        }
+    }
+
+    fn accepted(&self, v: f64) -> bool {
+        match self.transform {
+            Transform::Logit(b) if self.on_bound_ok => b.lower <= v && v <= b.upper,
+            t => t.in_support(v),
+        }
+    }
+
+    /// Notes the value `v` of file line `line`, data row `row`.
+    pub fn push(&mut self, v: f64, line: u64, row: usize) {
+        if self.accepted(v) {
+            return;
+        }
+        self.bad += 1;
+        if self.listed.len() < LIST_AT_MOST {
+            self.listed
+                .push(format!("line {line} (data row {row}) holds {v}"));
+        }
+    }
+
+    /// The error naming the offending rows of column `column` of `origin`, if any.
+    pub fn finish(self, origin: &str, column: &str) -> Result<()> {
+        if self.bad == 0 {
+            return Ok(());
+        }
+        let more = if self.bad > LIST_AT_MOST {
+            format!(", and {} more", self.bad - LIST_AT_MOST)
+        } else {
+            String::new()
+        };
+        let (needs, what) = match self.transform {
+            Transform::Logit(b) if self.on_bound_ok => (
+                format!(
+                    "[data] transform = \"logit\" needs values from [data] lower = {} to upper = {}",
+                    b.lower, b.upper
+                ),
+                "beyond a bound",
+            ),
+            Transform::Logit(b) => (
+                format!(
+                    "[data] transform = \"logit\" needs values strictly between [data] lower = {} and \
+                     upper = {} (values on a bound are accepted only with [data] resolution set)",
+                    b.lower, b.upper
+                ),
+                "on or beyond a bound",
+            ),
+            _ => (
+                "[data] transform = \"log\" needs positive values".to_string(),
+                "non-positive",
+            ),
+        };
+        Err(Error::input(format!(
+            "{origin}: {needs}, but column \"{column}\" has {} {what}: {}{more}",
+            self.bad,
+            self.listed.join("; ")
+        )))
     }
 }
 

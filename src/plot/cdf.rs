@@ -12,6 +12,7 @@ use super::canvas::{
 };
 use super::density::{draw_heading, draw_legend, LegendMark};
 use super::inputs::RunInputs;
+use super::observations::SortedObservations;
 use super::style;
 use crate::error::{Error, Result};
 use crate::summary::level_label;
@@ -75,6 +76,39 @@ impl StoredCdf {
     }
 }
 
+/// The empirical CDF of the sorted sample as a step line clipped to [x0, x1]: a vertical
+/// step at each observation (as many steps on a value as it has observations). Values
+/// recorded at a resolution (`one_step_per_value`) get one vertical step per distinct
+/// value, the same line with as many points as cells rather than observations.
+fn ecdf_steps(
+    obs: &SortedObservations,
+    one_step_per_value: bool,
+    (x0, x1): (f64, f64),
+) -> Vec<(f64, f64)> {
+    let n = obs.len().max(1) as f64;
+    let below: u64 = obs.runs().filter(|e| e.0 < x0).map(|e| e.1).sum();
+    let mut steps = vec![(x0, below as f64 / n)];
+    let mut start = 0usize;
+    for (v, c) in obs.runs() {
+        let c = c as usize;
+        if v >= x0 && v <= x1 {
+            if one_step_per_value {
+                steps.push((v, start as f64 / n));
+                steps.push((v, (start + c) as f64 / n));
+            } else {
+                for i in start..start + c {
+                    steps.push((v, i as f64 / n));
+                    steps.push((v, (i + 1) as f64 / n));
+                }
+            }
+        }
+        start += c;
+    }
+    let last = steps[steps.len() - 1].1;
+    steps.push((x1, last));
+    steps
+}
+
 /// Renders cdf.svg for a run whose cdf.csv is `cdf`.
 pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
     let (x0, x1) = (cdf.x[0], cdf.x[cdf.x.len() - 1]);
@@ -85,8 +119,7 @@ pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
     let not_converged = inp.bands.converged == Some(false);
     let mut order: Vec<usize> = (0..cdf.bands.len()).collect();
     order.sort_by(|&a, &b| cdf.bands[b].0.total_cmp(&cdf.bands[a].0));
-    let mut obs: Vec<f64> = inp.observations.clone();
-    obs.sort_by(f64::total_cmp);
+    let obs = inp.observations.sorted();
     let mut frame = None;
     let draw = |root: &Area<'_>| -> Result<()> {
         draw_heading(root, &title, inp, not_converged)?;
@@ -141,15 +174,7 @@ pub fn cdf_svg(inp: &RunInputs, cdf: &StoredCdf) -> Result<String> {
             ))
             .map_err(plot_err)?;
         // The empirical CDF as a step line, clipped to the grid.
-        let n = obs.len().max(1) as f64;
-        let below = obs.partition_point(|&v| v < x0);
-        let mut steps = vec![(x0, below as f64 / n)];
-        for (i, &v) in obs.iter().enumerate().filter(|&(_, &v)| v >= x0 && v <= x1) {
-            steps.push((v, i as f64 / n));
-            steps.push((v, (i + 1) as f64 / n));
-        }
-        let last = steps[steps.len() - 1].1;
-        steps.push((x1, last));
+        let steps = ecdf_steps(&obs, inp.observations.tabulated(), (x0, x1));
         chart
             .draw_series(std::iter::once(PathElement::new(
                 steps,
@@ -177,4 +202,48 @@ pub fn cdf_figure(inp: &RunInputs) -> Result<Option<String>> {
     }
     let cdf = StoredCdf::read(&path, &inp.bands.levels)?;
     cdf_svg(inp, &cdf).map(Some)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::plot::observations::Observations;
+
+    #[test]
+    fn the_ecdf_line_is_the_same_with_one_step_per_value() {
+        let obs = Observations::new(
+            vec![3.0, 1.0, 2.0, 5.0, 0.5],
+            Some(vec![2, 3, 1, 4, 2]),
+            false,
+        );
+        let (x0, x1) = (0.8, 4.0);
+        // Two points per observation, as the figure was drawn from the expanded sample.
+        let mut x: Vec<f64> = obs.iter().collect();
+        x.sort_by(f64::total_cmp);
+        let n = x.len() as f64;
+        let below = x.partition_point(|&v| v < x0);
+        let mut old = vec![(x0, below as f64 / n)];
+        for (i, &v) in x.iter().enumerate().filter(|&(_, &v)| v >= x0 && v <= x1) {
+            old.push((v, i as f64 / n));
+            old.push((v, (i + 1) as f64 / n));
+        }
+        old.push((x1, old[old.len() - 1].1));
+        let sorted = obs.sorted();
+        assert_eq!(ecdf_steps(&sorted, false, (x0, x1)), old);
+        // One step per value: the same points with the repeats inside a vertical run
+        // left out, so the same line.
+        let one = ecdf_steps(&sorted, true, (x0, x1));
+        assert_eq!(one.len(), 2 + 2 * 3);
+        let mut dedup = old.clone();
+        dedup.dedup();
+        let inner: Vec<(f64, f64)> = dedup
+            .iter()
+            .enumerate()
+            .filter(|&(i, p)| {
+                i == 0 || i + 1 == dedup.len() || dedup[i - 1].0 != p.0 || dedup[i + 1].0 != p.0
+            })
+            .map(|(_, &p)| p)
+            .collect();
+        assert_eq!(one, inner);
+    }
 }

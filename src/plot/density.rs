@@ -11,7 +11,7 @@ use super::canvas::{
 };
 use super::hist::Histogram;
 use super::inputs::RunInputs;
-use super::kde::{gaussian_kde, silverman_bandwidth};
+use super::kde::{gaussian_kde_of, silverman_bandwidth_of};
 use super::style;
 use crate::error::Result;
 use crate::summary::level_label;
@@ -27,10 +27,10 @@ pub struct DensityOptions {
 pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
     let b = &inp.bands;
     let (x0, x1) = (b.grid[0], b.grid[b.grid.len() - 1]);
-    let hist = Histogram::of(&inp.observations);
+    let hist = Histogram::of_sorted(&inp.observations.sorted());
     let kde = if opts.with_kde {
-        let h = silverman_bandwidth(&inp.observations);
-        Some((h, gaussian_kde(&inp.observations, h, &b.grid)))
+        let h = silverman_bandwidth_of(&inp.observations);
+        Some((h, gaussian_kde_of(&inp.observations, h, &b.grid)))
     } else {
         None
     };
@@ -176,8 +176,8 @@ pub fn density_svg(inp: &RunInputs, opts: DensityOptions) -> Result<String> {
                     .draw_series(
                         inp.observations
                             .iter()
-                            .filter(|&&v| v >= x0 && v <= x1)
-                            .map(|&v| {
+                            .filter(|&v| v >= x0 && v <= x1)
+                            .map(|v| {
                                 PathElement::new(
                                     vec![(v, 0.0), (v, top)],
                                     ShapeStyle::from(ink).stroke_width(1),

@@ -6,6 +6,7 @@ use std::path::Path;
 
 use serde::Deserialize;
 
+use super::observations::Observations;
 use crate::config::Kernel;
 use crate::error::{Error, Result};
 use crate::run::Prepared;
@@ -84,7 +85,7 @@ pub struct RunInputs {
     pub draws: ScalarDraws,
     pub bands: StoredBands,
     /// The observations on the data scale.
-    pub observations: Vec<f64>,
+    pub observations: Observations,
 }
 
 impl RunInputs {
@@ -115,17 +116,14 @@ impl RunInputs {
         }
         let bands = StoredBands::read(&layout.bands_json())?;
         let d = &prep.data;
-        // Frequency-weighted rows are expanded: histogram, rug and kernel estimate see the
-        // sample the weights stand for.
-        let observations = match &d.counts {
-            None => d.z.iter().map(|z| d.centre + d.scale * z).collect(),
-            Some(c) => {
-                d.z.iter()
-                    .zip(c)
-                    .flat_map(|(z, &ci)| std::iter::repeat_n(d.centre + d.scale * z, ci as usize))
-                    .collect()
-            }
-        };
+        // Frequency-weighted rows and the cells of values recorded at a resolution stay
+        // counted: histogram, rug and kernel estimate read the sample they stand for
+        // without it being expanded in memory.
+        let observations = Observations::new(
+            d.z.iter().map(|z| d.centre + d.scale * z).collect(),
+            d.counts.clone(),
+            prep.config.resolution.is_some(),
+        );
         Ok(RunInputs {
             layout,
             manifest,

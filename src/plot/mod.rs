@@ -12,6 +12,7 @@ pub mod hist;
 pub mod inputs;
 pub mod kde;
 pub mod loo_pit;
+pub mod observations;
 pub mod quantities;
 pub mod ranks;
 pub mod style;

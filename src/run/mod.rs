@@ -8,6 +8,7 @@ mod demo;
 mod execute;
 mod in_memory;
 mod job;
+mod loaded;
 mod merge;
 mod outputs;
 mod prepare;
@@ -22,6 +23,7 @@ pub use job::{
     check_run_dir, continue_run, merge_job, rebuild_bands, run_job, summarise_run, Continued,
     GridRequest, JobOptions, RunResult,
 };
+pub use loaded::{load_sample, load_sample_in_memory, Loaded};
 pub use merge::merge_runs;
 pub use outputs::{
     summary_file, write_bands, write_summaries, BandsFile, SummaryFile, QUANTILE_PROBS,

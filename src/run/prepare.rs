@@ -6,11 +6,9 @@ use std::path::Path;
 
 use sha2::{Digest, Sha256};
 
+use super::loaded::{load_sample, load_sample_in_memory, Loaded};
 use crate::config::{parse_config_str, resolve, RunConfig};
-use crate::data::{
-    load_weighted, load_weighted_from_reader, Cells, DataSummary, Recording, Standardised,
-    Transform,
-};
+use crate::data::{Cells, DataSummary, HashingReader, Standardised, Transform};
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
 use crate::store::DataRecord;
@@ -24,28 +22,6 @@ pub struct Prepared {
     pub record: DataRecord,
     /// The cells the values stand for when `[data] resolution` is set.
     pub cells: Option<Cells>,
-}
-
-/// The distinct values of `values`, sorted, with their total counts (`counts[i]` for row
-/// i, or 1 each; rows with count 0 left out).
-fn tabulate(values: &[f64], counts: Option<&[u64]>) -> (Vec<f64>, Option<Vec<u64>>) {
-    let mut rows: Vec<(f64, u64)> = values
-        .iter()
-        .enumerate()
-        .map(|(i, &v)| (v, counts.map_or(1, |c| c[i])))
-        .filter(|&(_, c)| c > 0)
-        .collect();
-    rows.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let mut out: (Vec<f64>, Vec<u64>) = (Vec::new(), Vec::new());
-    for (v, c) in rows {
-        if out.0.last() == Some(&v) {
-            *out.1.last_mut().expect("a value was pushed") += c;
-        } else {
-            out.0.push(v);
-            out.1.push(c);
-        }
-    }
-    (out.0, Some(out.1))
 }
 
 /// Lower-case hex SHA-256 of `bytes`.
@@ -85,63 +61,79 @@ impl Prepared {
         dir: &Path,
         data_bytes: Option<&[u8]>,
     ) -> Result<Prepared> {
+        Self::from_text_using(text, origin, dir, data_bytes, false)
+    }
+
+    /// [`Prepared::from_text`] with every row of the data held in memory before values
+    /// recorded at a resolution are tabulated: the straightforward form, kept as the
+    /// reference the streamed loader must match bit for bit (tests/streamed_loading.rs).
+    pub fn from_text_in_memory(
+        text: &str,
+        origin: &str,
+        dir: &Path,
+        data_bytes: Option<&[u8]>,
+    ) -> Result<Prepared> {
+        Self::from_text_using(text, origin, dir, data_bytes, true)
+    }
+
+    fn from_text_using(
+        text: &str,
+        origin: &str,
+        dir: &Path,
+        data_bytes: Option<&[u8]>,
+        in_memory: bool,
+    ) -> Result<Prepared> {
+        let load = |reader: &mut dyn std::io::Read, config: &RunConfig, lo: &str, d: &str| {
+            if in_memory {
+                load_sample_in_memory(reader, config, lo, d)
+            } else {
+                load_sample(reader, config, lo, d)
+            }
+        };
         let raw = parse_config_str(text, origin)?;
         // Check everything that does not depend on the data before touching the data.
         let pre = resolve(&raw, text, origin, dir, None)?;
+        let data_origin = pre.data_file.display().to_string();
         let (sample, bytes_hash, abs) = match data_bytes {
             Some(b) => (
-                load_weighted_from_reader(
-                    b,
-                    &pre.data_file_text,
-                    &pre.column,
-                    pre.freq_weights.as_deref(),
-                    pre.missing,
-                )?,
+                load(&mut &b[..], &pre, &pre.data_file_text, &data_origin)?,
                 sha256_hex(b),
                 pre.data_file_text.clone(),
             ),
             None => {
-                let bytes = std::fs::read(&pre.data_file).map_err(|e| {
+                let cannot_read = |e: &dyn std::fmt::Display| {
                     Error::input(format!(
                         "{origin}: [data] file: cannot read {}: {e}",
                         pre.data_file.display()
                     ))
-                })?;
-                let s = load_weighted(
-                    &pre.data_file,
-                    &pre.column,
-                    pre.freq_weights.as_deref(),
-                    pre.missing,
-                )?;
+                };
+                let file = std::fs::File::open(&pre.data_file).map_err(|e| cannot_read(&e))?;
+                // The bytes are hashed as the loader reads them: the file is read once and
+                // never held whole.
+                let mut reader = HashingReader::new(file);
+                let s =
+                    load(&mut reader, &pre, &data_origin, &data_origin).map_err(
+                        |e| match reader.error() {
+                            Some(io) => cannot_read(&io),
+                            None => e,
+                        },
+                    )?;
+                let hash = reader.finish().map_err(|e| cannot_read(&e))?;
                 let abs = std::fs::canonicalize(&pre.data_file)
                     .unwrap_or_else(|_| pre.data_file.clone())
                     .display()
                     .to_string();
-                (s, sha256_hex(&bytes), abs)
+                (s, hash, abs)
             }
         };
-        let data_origin = pre.data_file.display().to_string();
-        let mut fitted = pre.transform.apply_recorded(
-            &sample.values,
-            &sample.origins,
-            &data_origin,
-            &pre.column,
-            pre.resolution,
-        )?;
-        let mut sample = sample;
-        // On the values as recorded (data units), before anything is tabulated.
-        let recording = Recording::detect(&sample.values, sample.counts.as_deref(), pre.resolution);
-        if pre.resolution.is_some() {
-            // Recorded at a resolution, the sample is its table of distinct values: rows
-            // given one by one and as (value, count) then give the same run bit for bit.
-            (sample.values, sample.counts) = tabulate(&sample.values, sample.counts.as_deref());
-            fitted = sample
-                .values
-                .iter()
-                .map(|&v| pre.transform.fitted_value(v, pre.resolution))
-                .collect();
-        }
-        let data = Standardised::with_counts(&fitted, sample.counts.clone(), &data_origin)?;
+        let Loaded {
+            values,
+            counts,
+            dropped,
+            fitted,
+            recording,
+        } = sample;
+        let data = Standardised::with_counts(&fitted, counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
         if pre.transform != Transform::None {
@@ -155,8 +147,8 @@ impl Prepared {
                 origin,
                 dir,
                 Some(&DataSummary::of_counts(
-                    &sample.values,
-                    sample.counts.as_deref(),
+                    &values,
+                    counts.as_deref(),
                     &data_origin,
                 )?),
             )?;
@@ -185,8 +177,8 @@ impl Prepared {
         let prior = Prior::from_config(&config, data.centre, data.scale);
         let cells = config.resolution.map(|r| {
             Cells::from_rows(
-                &sample.values,
-                sample.counts.as_deref(),
+                &values,
+                counts.as_deref(),
                 r,
                 config.transform,
                 data.centre,
@@ -200,7 +192,7 @@ impl Prepared {
             column: config.column.clone(),
             sha256: bytes_hash,
             n: s.n,
-            dropped: sample.dropped,
+            dropped,
             mean: s.mean,
             sd: s.sd,
             min: s.min,
