@@ -16,9 +16,10 @@ use rand::Rng;
 
 use super::allocate::reference::pick;
 use super::allocate::BLOCK;
+use super::censored::Params;
 use super::rng::StreamKey;
 use crate::data::Cells;
-use crate::dist::{ln_std_normal_interval, multinomial};
+use crate::dist::multinomial;
 use crate::model::State;
 
 /// The allocation of a sweep as counts: for each component, the cells it holds
@@ -39,22 +40,6 @@ impl CellCounts {
     }
 }
 
-/// ln w_k + ln P_k(lo, hi) − max, exponentiated into `p`; returns (max, Σ_k p_k).
-fn cell_terms(state: &State, sd: &[f64], lo: f64, hi: f64, p: &mut [f64]) -> (f64, f64) {
-    let mut m = f64::NEG_INFINITY;
-    for (j, pj) in p.iter_mut().enumerate() {
-        let mu = state.mu[j];
-        *pj = state.log_w[j] + ln_std_normal_interval((lo - mu) / sd[j], (hi - mu) / sd[j]);
-        m = m.max(*pj);
-    }
-    let mut s = 0.0;
-    for pj in p.iter_mut() {
-        *pj = (*pj - m).exp();
-        s += *pj;
-    }
-    (m, s)
-}
-
 /// Draws the counts of every cell given the state and returns them with the censored
 /// log-likelihood of the state, Σ_c n_c ln Σ_k w_k P_k(c).
 pub fn allocate_cell_counts(
@@ -64,7 +49,7 @@ pub fn allocate_cell_counts(
     sweep: u64,
 ) -> (CellCounts, f64) {
     let k = state.k();
-    let sd: Vec<f64> = state.var.iter().map(|v| v.sqrt()).collect();
+    let par = Params::of(state);
     let mut counts = CellCounts {
         held: vec![Vec::new(); k],
     };
@@ -76,7 +61,7 @@ pub fn allocate_cell_counts(
         let mut block_ll = 0.0;
         for c in range {
             let (lo, hi, n) = (cells.lo[c], cells.hi[c], cells.count[c]);
-            let (mx, s) = cell_terms(state, &sd, lo, hi, &mut p);
+            let (mx, s) = par.cell_terms(lo, hi, &mut p);
             block_ll += n as f64 * (mx + s.ln());
             if n == 1 {
                 let j = pick(&p, rng.random::<f64>() * s);

@@ -32,14 +32,14 @@ pub struct Latent {
 }
 
 /// Per-component ln w_k and σ_k of a state.
-struct Params<'a> {
+pub(super) struct Params<'a> {
     log_w: &'a [f64],
     mu: &'a [f64],
     sd: Vec<f64>,
 }
 
 impl<'a> Params<'a> {
-    fn of(state: &'a State) -> Self {
+    pub(super) fn of(state: &'a State) -> Self {
         Params {
             log_w: &state.log_w,
             mu: &state.mu,
@@ -48,7 +48,7 @@ impl<'a> Params<'a> {
     }
 
     /// p_k = ln w_k + ln P_k(lo, hi) − max, exponentiated; returns (max, Σ_k p_k).
-    fn cell_terms(&self, lo: f64, hi: f64, p: &mut [f64]) -> (f64, f64) {
+    pub(super) fn cell_terms(&self, lo: f64, hi: f64, p: &mut [f64]) -> (f64, f64) {
         let mut m = f64::NEG_INFINITY;
         for (j, pj) in p.iter_mut().enumerate() {
             let (mu, sd) = (self.mu[j], self.sd[j]);
