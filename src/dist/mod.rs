@@ -19,5 +19,5 @@ pub use multinomial::multinomial;
 pub use normal::{ln_normal_pdf, normal, std_normal, LN_SQRT_2PI};
 pub use truncnorm::{
     ln_std_normal_interval, ln_upper_tail, truncated_std_normal, truncated_std_normal_moments,
-    truncated_std_normal_summary,
+    truncated_std_normal_moments_given, truncated_std_normal_summary,
 };

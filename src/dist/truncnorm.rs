@@ -64,6 +64,13 @@ pub fn truncated_std_normal_moments(a: f64, b: f64) -> (f64, f64) {
 pub fn truncated_std_normal_summary(a: f64, b: f64) -> (f64, f64, f64) {
     debug_assert!(a < b, "empty interval ({a}, {b})");
     let ln_p = ln_std_normal_interval(a, b);
+    let (m1, m2) = truncated_std_normal_moments_given(a, b, ln_p);
+    (ln_p, m1, m2)
+}
+
+/// [`truncated_std_normal_moments`] when ln P(a < Z < b) is already known (`ln_p`, as
+/// [`ln_std_normal_interval`] computes it).
+pub fn truncated_std_normal_moments_given(a: f64, b: f64, ln_p: f64) -> (f64, f64) {
     // φ(t)/P and t φ(t)/P, both 0 at an infinite edge.
     let ratio = |t: f64| {
         if t.is_finite() {
@@ -77,7 +84,7 @@ pub fn truncated_std_normal_summary(a: f64, b: f64) -> (f64, f64, f64) {
     let (rb, trb) = ratio(b);
     let m1 = (ra - rb).clamp(a, b);
     let m2 = (1.0 + tra - trb).max(m1 * m1);
-    (ln_p, m1, m2)
+    (m1, m2)
 }
 
 /// ln(1 − e^d) for d ≤ 0 without cancellation (Mächler 2012, "Accurately computing

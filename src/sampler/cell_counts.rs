@@ -26,8 +26,9 @@ use crate::model::State;
 /// observations of and how many, in cell order.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct CellCounts {
-    /// `held[k]`: (cell index, m_ck) for every cell with m_ck > 0.
-    pub held: Vec<Vec<(u32, u64)>>,
+    /// `held[k]`: (cell index, m_ck, ln P_k(cell) at the parameters the counts were drawn
+    /// from) for every cell with m_ck > 0.
+    pub held: Vec<Vec<(u32, u64, f64)>>,
 }
 
 impl CellCounts {
@@ -35,7 +36,7 @@ impl CellCounts {
     pub fn totals(&self) -> Vec<u64> {
         self.held
             .iter()
-            .map(|h| h.iter().map(|&(_, m)| m).sum())
+            .map(|h| h.iter().map(|&(_, m, _)| m).sum())
             .collect()
     }
 }
@@ -54,6 +55,7 @@ pub fn allocate_cell_counts(
         held: vec![Vec::new(); k],
     };
     let (mut p, mut tail, mut m) = (vec![0.0; k], vec![0.0; k], vec![0u64; k]);
+    let mut ln_p = vec![0.0; k];
     let mut loglik = 0.0;
     for b in 0..cells.len().div_ceil(BLOCK) {
         let range = b * BLOCK..((b + 1) * BLOCK).min(cells.len());
@@ -61,17 +63,17 @@ pub fn allocate_cell_counts(
         let mut block_ll = 0.0;
         for c in range {
             let (lo, hi, n) = (cells.lo[c], cells.hi[c], cells.count[c]);
-            let (mx, s) = par.cell_terms(lo, hi, &mut p);
+            let (mx, s) = par.cell_terms_keep(lo, hi, &mut p, &mut ln_p);
             block_ll += n as f64 * (mx + s.ln());
             if n == 1 {
                 let j = pick(&p, rng.random::<f64>() * s);
-                counts.held[j].push((c as u32, 1));
+                counts.held[j].push((c as u32, 1, ln_p[j]));
                 continue;
             }
             multinomial(n, &p, &mut tail, &mut m, &mut rng);
             for (j, &mj) in m.iter().enumerate() {
                 if mj > 0 {
-                    counts.held[j].push((c as u32, mj));
+                    counts.held[j].push((c as u32, mj, ln_p[j]));
                 }
             }
         }
@@ -117,7 +119,7 @@ mod tests {
         let (counts, _) = allocate_cell_counts(&cells, &state(), &StreamKey::new(5, 2), 4);
         let mut per_cell = vec![0u64; cells.len()];
         for h in &counts.held {
-            for &(c, m) in h {
+            for &(c, m, _) in h {
                 per_cell[c as usize] += m;
             }
         }

@@ -27,7 +27,10 @@ use statrs::function::gamma::ln_gamma;
 use super::cell_counts::CellCounts;
 use crate::config::Kernel;
 use crate::data::Cells;
-use crate::dist::{gamma_rate, inv_gamma, ln_normal_pdf, normal, truncated_std_normal_summary};
+use crate::dist::{
+    gamma_rate, inv_gamma, ln_normal_pdf, normal, truncated_std_normal_moments_given,
+    truncated_std_normal_summary,
+};
 use crate::model::{Prior, State, VarScale};
 
 /// Which Metropolis–Hastings ratio the parameter updates use. The sampler uses
@@ -60,15 +63,22 @@ struct Pass {
     resid: f64,
 }
 
-fn pass(cells: &Cells, held: &[(u32, u64)], mu: f64, sd: f64) -> Pass {
+/// With `cached`, (μ, σ) must be the parameters the counts were drawn at, and each cell's
+/// ln P is taken from the allocation (the same bits) instead of computed again.
+fn pass(cells: &Cells, held: &[(u32, u64, f64)], mu: f64, sd: f64, cached: bool) -> Pass {
     let mut p = Pass::default();
-    for &(c, m) in held {
+    for &(c, m, kept) in held {
         let (a, b) = (
             (cells.lo[c as usize] - mu) / sd,
             (cells.hi[c as usize] - mu) / sd,
         );
         let m = m as f64;
-        let (ln_p, t1, t2) = truncated_std_normal_summary(a, b);
+        let (ln_p, t1, t2) = if cached {
+            let (t1, t2) = truncated_std_normal_moments_given(a, b, kept);
+            (kept, t1, t2)
+        } else {
+            truncated_std_normal_summary(a, b)
+        };
         p.loglik += m * ln_p;
         p.n += m;
         p.s1 += m * (mu + sd * t1);
@@ -168,11 +178,11 @@ fn location_scale<R: Rng + ?Sized>(
             continue;
         }
         let (mu, v) = (state.mu[j], state.var[j]);
-        let cur = pass(cells, held, mu, v.sqrt());
+        let cur = pass(cells, held, mu, v.sqrt(), true);
         let q_fwd = nig_posterior(prior, b, cur.n, cur.s1, cur.s2);
         let v_new = inv_gamma(q_fwd.2, q_fwd.3, rng);
         let mu_new = normal(q_fwd.0, (v_new / q_fwd.1).sqrt(), rng);
-        let new = pass(cells, held, mu_new, v_new.sqrt());
+        let new = pass(cells, held, mu_new, v_new.sqrt(), false);
         let mut log_r =
             new.loglik + ln_nig(mu_new, v_new, prior_nig) - cur.loglik - ln_nig(mu, v, prior_nig);
         if ratio == CellRatio::Exact {
@@ -209,12 +219,12 @@ fn location<R: Rng + ?Sized>(
             continue;
         }
         let mu = state.mu[j];
-        let cur = pass(cells, held, mu, sd);
+        let cur = pass(cells, held, mu, sd, true);
         let prec = prior_prec + cur.n / v;
         let q_sd = prec.recip().sqrt();
         let fwd_mean = (m * prior_prec + cur.s1 / v) / prec;
         let mu_new = normal(fwd_mean, q_sd, rng);
-        let new = pass(cells, held, mu_new, sd);
+        let new = pass(cells, held, mu_new, sd, false);
         let mut log_r =
             new.loglik + ln_normal_pdf(mu_new, m, s) - cur.loglik - ln_normal_pdf(mu, m, s);
         if exact {
@@ -232,7 +242,7 @@ fn location<R: Rng + ?Sized>(
     let whole = |sd: f64, state: &State| {
         let mut t = Pass::default();
         for (j, held) in counts.held.iter().enumerate() {
-            let p = pass(cells, held, state.mu[j], sd);
+            let p = pass(cells, held, state.mu[j], sd, false);
             t.loglik += p.loglik;
             t.n += p.n;
             t.resid += p.resid;
@@ -272,8 +282,8 @@ mod tests {
         let m = [2.0, 1.0, 5.0];
         let (w, mu, sd) = (0.01, 0.05, 0.8);
         let cells = Cells::from_rows(&x, None, w, Transform::None, 0.0, 1.0);
-        let held: Vec<(u32, u64)> = vec![(0, 2), (1, 1), (2, 5)];
-        let p = pass(&cells, &held, mu, sd);
+        let held: Vec<(u32, u64, f64)> = vec![(0, 2, 0.0), (1, 1, 0.0), (2, 5, 0.0)];
+        let p = pass(&cells, &held, mu, sd, false);
         let (mut s1, mut s2) = (0.0, 0.0);
         for (xi, mi) in x.iter().zip(m) {
             let shift = -(w * w / 12.0) * (xi - mu) / (sd * sd);

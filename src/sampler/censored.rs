@@ -55,6 +55,29 @@ impl<'a> Params<'a> {
             *pj = self.log_w[j] + ln_std_normal_interval((lo - mu) / sd, (hi - mu) / sd);
             m = m.max(*pj);
         }
+        Self::normalise(m, p)
+    }
+
+    /// [`Params::cell_terms`] that also keeps each ln P_k(lo, hi) in `ln_p`.
+    pub(super) fn cell_terms_keep(
+        &self,
+        lo: f64,
+        hi: f64,
+        p: &mut [f64],
+        ln_p: &mut [f64],
+    ) -> (f64, f64) {
+        let mut m = f64::NEG_INFINITY;
+        for (j, pj) in p.iter_mut().enumerate() {
+            let (mu, sd) = (self.mu[j], self.sd[j]);
+            ln_p[j] = ln_std_normal_interval((lo - mu) / sd, (hi - mu) / sd);
+            *pj = self.log_w[j] + ln_p[j];
+            m = m.max(*pj);
+        }
+        Self::normalise(m, p)
+    }
+
+    /// p_k − max exponentiated in place; returns (max, Σ_k).
+    fn normalise(m: f64, p: &mut [f64]) -> (f64, f64) {
         let mut s = 0.0;
         for pj in p.iter_mut() {
             *pj = (*pj - m).exp();
