@@ -11,6 +11,29 @@
 
 use super::transform::Transform;
 
+/// The distinct values of `values`, sorted, with their total counts (`counts[i]` for row
+/// i, or 1 each; rows with count 0 left out; values equal under `==`, such as −0 and 0,
+/// are one value).
+pub fn distinct_counted(values: &[f64], counts: Option<&[u64]>) -> (Vec<f64>, Vec<u64>) {
+    let mut rows: Vec<(f64, u64)> = values
+        .iter()
+        .enumerate()
+        .map(|(i, &v)| (v, counts.map_or(1, |c| c[i])))
+        .filter(|&(_, c)| c > 0)
+        .collect();
+    rows.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut out: (Vec<f64>, Vec<u64>) = (Vec::new(), Vec::new());
+    for (v, c) in rows {
+        if out.0.last() == Some(&v) {
+            *out.1.last_mut().expect("a value was pushed") += c;
+        } else {
+            out.0.push(v);
+            out.1.push(c);
+        }
+    }
+    out
+}
+
 /// Distinct cells, sorted by their recorded value; bounds in standard units.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Cells {
@@ -34,13 +57,7 @@ impl Cells {
         centre: f64,
         scale: f64,
     ) -> Cells {
-        let mut rows: Vec<(f64, u64)> = values
-            .iter()
-            .enumerate()
-            .map(|(i, &v)| (v, counts.map_or(1, |c| c[i])))
-            .filter(|&(_, c)| c > 0)
-            .collect();
-        rows.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let (distinct, counts) = distinct_counted(values, counts);
         let half = 0.5 * resolution;
         let edge = |x: f64, outside: f64| {
             if transform.in_support(x) {
@@ -54,13 +71,7 @@ impl Cells {
             hi: Vec::new(),
             count: Vec::new(),
         };
-        let mut last: Option<f64> = None;
-        for (v, c) in rows {
-            if last == Some(v) {
-                *cells.count.last_mut().expect("a cell was pushed") += c;
-                continue;
-            }
-            last = Some(v);
+        for (v, c) in distinct.into_iter().zip(counts) {
             cells.lo.push(edge(v - half, f64::NEG_INFINITY));
             cells.hi.push(edge(v + half, f64::INFINITY));
             cells.count.push(c);

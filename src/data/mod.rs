@@ -10,7 +10,7 @@ mod standardise;
 mod tally;
 mod transform;
 
-pub use cells::Cells;
+pub use cells::{distinct_counted, Cells};
 pub use digest::HashingReader;
 pub use lattice::{Heaping, Lattice, Recording};
 pub use load::{

@@ -7,29 +7,15 @@
 use std::io::Read;
 
 use crate::config::RunConfig;
-use crate::data::{load_weighted_from_reader, scan_rows, Recording, SupportCheck, Tally};
+use crate::data::{
+    distinct_counted, load_weighted_from_reader, scan_rows, Recording, SupportCheck, Tally,
+};
 use crate::error::{Error, Result};
 
-/// The distinct values of `values`, sorted, with their total counts (`counts[i]` for row
-/// i, or 1 each; rows with count 0 left out).
+/// The distinct values with their counts, as the run keeps recorded data.
 fn tabulate(values: &[f64], counts: Option<&[u64]>) -> (Vec<f64>, Option<Vec<u64>>) {
-    let mut rows: Vec<(f64, u64)> = values
-        .iter()
-        .enumerate()
-        .map(|(i, &v)| (v, counts.map_or(1, |c| c[i])))
-        .filter(|&(_, c)| c > 0)
-        .collect();
-    rows.sort_by(|a, b| a.0.total_cmp(&b.0));
-    let mut out: (Vec<f64>, Vec<u64>) = (Vec::new(), Vec::new());
-    for (v, c) in rows {
-        if out.0.last() == Some(&v) {
-            *out.1.last_mut().expect("a value was pushed") += c;
-        } else {
-            out.0.push(v);
-            out.1.push(c);
-        }
-    }
-    (out.0, Some(out.1))
+    let (v, c) = distinct_counted(values, counts);
+    (v, Some(c))
 }
 
 /// The sample as the run uses it: one entry per row for exact values, one per distinct
