@@ -69,6 +69,16 @@ impl Lattice {
     }
 }
 
+/// ln Σ_k w_k [Φ((hi − μ_k)/σ_k) − Φ((lo − μ_k)/σ_k)] under one draw, with `lw` its ln w_k
+/// and `terms` scratch of the same length (fitted scale, data units).
+pub fn ln_cell_probability(row: &DrawRow, lw: &[f64], lo: f64, hi: f64, terms: &mut [f64]) -> f64 {
+    for (k, t) in terms.iter_mut().enumerate() {
+        let (m, sd) = (row.mean[k], row.sd[k]);
+        *t = lw[k] + ln_std_normal_interval((lo - m) / sd, (hi - m) / sd);
+    }
+    log_sum_exp(terms)
+}
+
 /// The log cell probability and the predictive CDF at both cell edges (fitted scale, data
 /// units) of each cell `rows` picks from `lo`/`hi`, under every draw: three matrices in
 /// the draw-major layout of [`LogLik`].
@@ -90,11 +100,8 @@ pub fn interval_matrices(
             Vec::with_capacity(n),
         );
         for &i in rows {
-            for k in 0..lw.len() {
-                let (m, sd) = (row.mean[k], row.sd[k]);
-                terms[k] = lw[k] + ln_std_normal_interval((lo[i] - m) / sd, (hi[i] - m) / sd);
-            }
-            out.0.push(log_sum_exp(&terms));
+            out.0
+                .push(ln_cell_probability(row, &lw, lo[i], hi[i], &mut terms));
             out.1.push(mixture_cdf(row, lo[i]));
             out.2.push(mixture_cdf(row, hi[i]));
         }

@@ -24,9 +24,9 @@ use std::path::Path;
 
 use serde::Serialize;
 
-use crate::check::recorded::fitted_edges;
+use crate::check::recorded::{fitted_edges, ln_cell_probability};
 use crate::config::parse_config_str;
-use crate::dist::{ln_normal_pdf, ln_std_normal_interval, log_sum_exp};
+use crate::dist::{ln_normal_pdf, log_sum_exp};
 use crate::error::{Error, Result};
 use crate::run::Prepared;
 use crate::store::{read_run_draws, DrawRow, Manifest, RunLayout};
@@ -161,16 +161,11 @@ pub fn run_loglik(dir: &Path) -> Result<RunLogLik> {
         Some(cells) => {
             let (lo, hi) = fitted_edges(cells, prep.data.centre, prep.data.scale);
             let mut values = Vec::with_capacity(rows.len() * cells.len());
-            let mut terms = Vec::new();
             for row in &rows {
                 let lw: Vec<f64> = row.weight.iter().map(|w| w.ln()).collect();
-                for (a, b) in lo.iter().zip(&hi) {
-                    terms.clear();
-                    terms.extend((0..lw.len()).map(|k| {
-                        let (m, sd) = (row.mean[k], row.sd[k]);
-                        lw[k] + ln_std_normal_interval((a - m) / sd, (b - m) / sd)
-                    }));
-                    values.push(log_sum_exp(&terms));
+                let mut terms = vec![0.0; lw.len()];
+                for (&a, &b) in lo.iter().zip(&hi) {
+                    values.push(ln_cell_probability(row, &lw, a, b, &mut terms));
                 }
             }
             (values, cells.count.clone())

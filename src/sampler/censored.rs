@@ -49,13 +49,7 @@ impl<'a> Params<'a> {
 
     /// p_k = ln w_k + ln P_k(lo, hi) − max, exponentiated; returns (max, Σ_k p_k).
     pub(super) fn cell_terms(&self, lo: f64, hi: f64, p: &mut [f64]) -> (f64, f64) {
-        let mut m = f64::NEG_INFINITY;
-        for (j, pj) in p.iter_mut().enumerate() {
-            let (mu, sd) = (self.mu[j], self.sd[j]);
-            *pj = self.log_w[j] + ln_std_normal_interval((lo - mu) / sd, (hi - mu) / sd);
-            m = m.max(*pj);
-        }
-        Self::normalise(m, p)
+        self.terms(lo, hi, p, None)
     }
 
     /// [`Params::cell_terms`] that also keeps each ln P_k(lo, hi) in `ln_p`.
@@ -66,18 +60,20 @@ impl<'a> Params<'a> {
         p: &mut [f64],
         ln_p: &mut [f64],
     ) -> (f64, f64) {
+        self.terms(lo, hi, p, Some(ln_p))
+    }
+
+    fn terms(&self, lo: f64, hi: f64, p: &mut [f64], mut keep: Option<&mut [f64]>) -> (f64, f64) {
         let mut m = f64::NEG_INFINITY;
         for (j, pj) in p.iter_mut().enumerate() {
             let (mu, sd) = (self.mu[j], self.sd[j]);
-            ln_p[j] = ln_std_normal_interval((lo - mu) / sd, (hi - mu) / sd);
-            *pj = self.log_w[j] + ln_p[j];
+            let l = ln_std_normal_interval((lo - mu) / sd, (hi - mu) / sd);
+            if let Some(k) = keep.as_deref_mut() {
+                k[j] = l;
+            }
+            *pj = self.log_w[j] + l;
             m = m.max(*pj);
         }
-        Self::normalise(m, p)
-    }
-
-    /// p_k − max exponentiated in place; returns (max, Σ_k).
-    fn normalise(m: f64, p: &mut [f64]) -> (f64, f64) {
         let mut s = 0.0;
         for pj in p.iter_mut() {
             *pj = (*pj - m).exp();

@@ -166,6 +166,7 @@ fn cell_sweep(
     opts: &SweepOptions<'_>,
 ) -> SweepOutcome {
     let (mut counts, loglik) = allocate_cell_counts(cells, state, key, index);
+    let mut n = counts.totals();
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
         // The moves read only the counts and swap whole components; each label's origin
@@ -173,7 +174,7 @@ fn cell_sweep(
         // each component can follow.
         let k = state.k();
         let mut stats = SuffStats {
-            n: counts.totals(),
+            n,
             sum: (0..k).map(|j| j as f64).collect(),
             sumsq: vec![0.0; k],
         };
@@ -184,8 +185,8 @@ fn cell_sweep(
             .iter()
             .map(|&from| std::mem::take(&mut held[from as usize]))
             .collect();
+        n = stats.n;
     }
-    let n = counts.totals();
     let mut rng = key.sweep_rng(index);
     update_concentration_given_counts(prior, &n, state, &mut rng);
     update_weights(prior.weights, &n, state, &mut rng);
