@@ -92,6 +92,19 @@ pub fn label_moves<R: Rng + ?Sized>(
     ratios: &MoveRatios,
     rng: &mut R,
 ) -> MoveTally {
+    label_moves_carrying::<R, ()>(stats, state, ratios, rng, None)
+}
+
+/// [`label_moves`] that also swaps `carry[a]` and `carry[b]` with every accepted swap of
+/// components a and b (what else a caller keeps per component, such as the cells each
+/// holds).
+pub fn label_moves_carrying<R: Rng + ?Sized, T>(
+    stats: &mut SuffStats,
+    state: &mut State,
+    ratios: &MoveRatios,
+    rng: &mut R,
+    mut carry: Option<&mut [T]>,
+) -> MoveTally {
     let k = state.k();
     let mut tally = MoveTally::default();
     debug_assert_eq!(
@@ -117,6 +130,9 @@ pub fn label_moves<R: Rng + ?Sized>(
             tally.labels_proposed += 1;
             if accept(log_r, rng) {
                 swap_components(stats, state, a, b);
+                if let Some(c) = carry.as_deref_mut() {
+                    c.swap(a, b);
+                }
                 tally.labels_accepted += 1;
             }
         }
@@ -136,6 +152,9 @@ pub fn label_moves<R: Rng + ?Sized>(
             tally.adjacent_proposed += 1;
             if accept(log_r, rng) {
                 swap_components(stats, state, a, b);
+                if let Some(c) = carry.as_deref_mut() {
+                    c.swap(a, b);
+                }
                 state.log_v.swap(a, b);
                 state.log_1mv.swap(a, b);
                 tally.adjacent_accepted += 1;
@@ -313,18 +332,24 @@ mod tests {
         }
         let mut rng = StreamKey::new(3, 1).label_rng(1);
         let mut accepted = 0;
+        let mut carried: Vec<usize> = (0..6).collect();
         for _ in 0..50 {
-            let t = label_moves(&mut stats, &mut state, &EXACT, &mut rng);
+            let t =
+                label_moves_carrying(&mut stats, &mut state, &EXACT, &mut rng, Some(&mut carried));
             accepted += t.labels_accepted + t.adjacent_accepted;
         }
         assert!(accepted > 0);
-        // Every label still carries its own statistics and parameters, in some order.
+        // Every label still carries its own statistics, parameters and carried item, in
+        // some order.
         for j in 0..6 {
             let orig = (stats.sum[j] / 10.0).round() as usize;
             assert_eq!(stats.n[j], (orig as u64 * 3) % 5);
             assert_eq!(stats.sumsq[j], orig as f64 * 100.0);
             assert_eq!(state.mu[j], orig as f64);
             assert_eq!(state.var[j], 1.0 + orig as f64);
+        }
+        for (c, sum) in carried.iter().zip(&stats.sum) {
+            assert_eq!(*c, (sum / 10.0).round() as usize);
         }
         // The sticks are a permutation of the free ones, the last is still 1, and the
         // weights were recomputed from them.

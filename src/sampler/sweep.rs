@@ -21,7 +21,9 @@ pub const SPLIT_MERGE_PROPOSALS: usize = 20;
 use super::components::update_components;
 use super::concentration::update_concentration_given_counts;
 use super::hyper::{pin_fixed, update_concentration, update_var_scale};
-use super::label_moves::{label_moves, label_moves_counts, MoveRatios, MoveTally, EXACT};
+use super::label_moves::{
+    label_moves, label_moves_carrying, label_moves_counts, MoveRatios, MoveTally, EXACT,
+};
 use super::rng::StreamKey;
 use super::var_scale::update_var_scale_given_stats;
 use super::weights::update_weights;
@@ -169,22 +171,20 @@ fn cell_sweep(
     let mut n = counts.totals();
     let mut moves = MoveTally::default();
     if prior.label_moves && prior.weights == WeightsKind::StickBreaking {
-        // The moves read only the counts and swap whole components; each label's origin
-        // rides through the swaps in the (otherwise unused) sums, so the cells held by
-        // each component can follow.
+        // The moves read only the counts; the cells each component holds swap with it.
         let k = state.k();
         let mut stats = SuffStats {
             n,
-            sum: (0..k).map(|j| j as f64).collect(),
+            sum: vec![0.0; k],
             sumsq: vec![0.0; k],
         };
-        moves = label_moves(&mut stats, state, opts.ratios, &mut key.label_rng(index));
-        let mut held = std::mem::take(&mut counts.held);
-        counts.held = stats
-            .sum
-            .iter()
-            .map(|&from| std::mem::take(&mut held[from as usize]))
-            .collect();
+        moves = label_moves_carrying(
+            &mut stats,
+            state,
+            opts.ratios,
+            &mut key.label_rng(index),
+            Some(&mut counts.held),
+        );
         n = stats.n;
     }
     let mut rng = key.sweep_rng(index);
