@@ -147,6 +147,15 @@ fn zero_draws() {
 }
 
 #[test]
+fn negative_resplit_moves() {
+    bad_config(
+        "range_resplit",
+        &BASE.replace("draws = 10", "draws = 10\nresplit_moves = -2"),
+        &["[sampler] resplit_moves", "at least 0", "line 9"],
+    );
+}
+
+#[test]
 fn zero_components() {
     let cfg = with_line("[model]\ncomponents = 0");
     bad_config(

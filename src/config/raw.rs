@@ -146,6 +146,9 @@ pub struct SamplerSection {
     /// "conditional" or "collapsed" (see docs/model.md).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub allocation: Option<AllocationKind>,
+    /// Re-split moves per sweep (0: none; see docs/model.md, "Re-split moves").
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub resplit_moves: Option<i64>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -32,6 +32,9 @@ pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
     })
 }
 
+/// Most re-split moves a sweep (each costs a few passes over the data or its cells).
+const MAX_RESPLIT: i64 = 1000;
+
 /// Largest sample for which `[sampler] allocation` defaults to "collapsed".
 pub const COLLAPSED_MAX_N: usize = 20_000;
 
@@ -72,6 +75,8 @@ pub struct RunConfig {
     pub seed: u64,
     pub label_moves: bool,
     pub allocation: AllocationKind,
+    /// `[sampler] resplit_moves`: re-split moves per sweep (0: none).
+    pub resplit_moves: usize,
     pub grid_from: f64,
     pub grid_to: f64,
     pub grid_points: usize,
@@ -263,6 +268,14 @@ pub fn resolve(
     let chains = ck.int_in("sampler", "chains", s.chains, 1, MAX_CHAINS, 4)?;
     let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 1000)?;
     let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 3000)?;
+    let resplit_moves = ck.int_in(
+        "sampler",
+        "resplit_moves",
+        s.resplit_moves,
+        0,
+        MAX_RESPLIT,
+        0,
+    )?;
     let thin = ck.int_in("sampler", "thin", s.thin, 1, MAX_THIN, 1)?;
     if (warmup + draws * thin) as i64 > MAX_SWEEPS {
         return Err(ck.fail(
@@ -463,6 +476,7 @@ pub fn resolve(
         seed,
         label_moves: s.label_moves.unwrap_or(true),
         allocation,
+        resplit_moves,
         grid_from,
         grid_to,
         grid_points: points,
@@ -586,6 +600,7 @@ impl RunConfig {
                     .map(|v| v.iter().map(|&i| i as i64).collect()),
                 label_moves: (!dir).then_some(self.label_moves),
                 allocation: Some(self.allocation),
+                resplit_moves: (self.resplit_moves > 0).then_some(self.resplit_moves as i64),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

@@ -181,17 +181,7 @@ fn metadata(out: &mut String, inp: &RunInputs) {
                 c.draws,
                 c.warmup,
                 c.thin,
-                match (c.allocation, c.resolution.is_some()) {
-                    (crate::config::AllocationKind::Collapsed, _) => {
-                        "collapsed allocation scan with split–merge moves"
-                    }
-                    (crate::config::AllocationKind::Conditional, true) => {
-                        "conditional step on counts per recorded cell"
-                    }
-                    (crate::config::AllocationKind::Conditional, false) => {
-                        "conditional allocation step"
-                    }
-                }
+                sweep_description(c)
             ),
         ),
         ("draws used for the bands", inp.bands.draws_used.to_string()),
@@ -411,5 +401,22 @@ fn concentration_prior(c: &crate::config::RunConfig) -> String {
         (WeightsKind::StickBreaking, _, HyperChoice::Gamma) => {
             format!("α ~ Gamma({}, {})", p.alpha_shape, p.alpha_rate)
         }
+    }
+}
+
+/// What one sweep of the run does, for the report's run table.
+fn sweep_description(c: &crate::config::RunConfig) -> String {
+    let step = match (c.allocation, c.resolution.is_some()) {
+        (crate::config::AllocationKind::Collapsed, _) => {
+            "collapsed allocation scan with split–merge moves"
+        }
+        (crate::config::AllocationKind::Conditional, true) => {
+            "conditional step on counts per recorded cell"
+        }
+        (crate::config::AllocationKind::Conditional, false) => "conditional allocation step",
+    };
+    match c.resplit_moves {
+        0 => step.to_string(),
+        m => format!("{step}, then {m} re-split moves of a pair of components"),
     }
 }

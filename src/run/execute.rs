@@ -382,6 +382,7 @@ fn run_one(
         alloc,
         counts: prep.data.counts.as_deref(),
         cells: prep.cells.as_ref(),
+        resplit_pairs: prep.config.resplit_moves,
         ..SweepOptions::default()
     };
     let stop_kind = run_chain_opts(x, &prep.prior, &key, plan, start, &mut writer, stop, &opts)?;

@@ -20,6 +20,8 @@ pub mod concentration;
 pub mod hyper;
 mod init;
 pub mod label_moves;
+pub mod pair_coords;
+pub mod resplit;
 pub mod rng;
 mod slice;
 pub mod split_merge;

@@ -22,6 +22,8 @@ const LABEL_STREAM: u64 = u64::MAX - 1;
 const COLLAPSED_STREAM: u64 = u64::MAX - 2;
 /// Block index reserved for the split–merge proposals of a sweep (see `split_merge`).
 const SPLIT_MERGE_STREAM: u64 = u64::MAX - 3;
+/// Block index reserved for the re-split moves of a sweep (see `resplit`).
+const RESPLIT_STREAM: u64 = u64::MAX - 4;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
 /// Sweep index of the model check's streams (`src/check/`), under chain 0, which no chain
@@ -84,6 +86,11 @@ impl StreamKey {
     /// Generator for the split–merge proposals in sweep `sweep`.
     pub fn split_merge_rng(&self, sweep: u64) -> ChaCha8Rng {
         self.rng(sweep, SPLIT_MERGE_STREAM)
+    }
+
+    /// Generator for the re-split moves in sweep `sweep`.
+    pub fn resplit_rng(&self, sweep: u64) -> ChaCha8Rng {
+        self.rng(sweep, RESPLIT_STREAM)
     }
 
     /// Generator for the chain's starting point.

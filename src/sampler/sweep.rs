@@ -24,6 +24,7 @@ use super::hyper::{pin_fixed, update_concentration, update_var_scale};
 use super::label_moves::{
     label_moves, label_moves_carrying, label_moves_counts, MoveRatios, MoveTally, EXACT,
 };
+use super::resplit::{resplit, PairData, ResplitTally, ResplitTarget};
 use super::rng::StreamKey;
 use super::var_scale::update_var_scale_given_stats;
 use super::weights::update_weights;
@@ -43,6 +44,8 @@ pub struct SweepOutcome {
     /// Proposals and acceptances of the parameter updates given counts per cell (the
     /// conditional sweep for data recorded at a resolution; zero otherwise).
     pub cell_moves: CellTally,
+    /// Pairs tried and moved by the re-split moves.
+    pub resplits: ResplitTally,
 }
 
 /// How a sweep runs beyond the model: none of these change what it samples from.
@@ -62,6 +65,11 @@ pub struct SweepOptions<'a> {
     /// Ratio of the parameter updates given counts per cell (conditional sweep with
     /// cells); only the joint-distribution test passes anything but the exact one.
     pub cell_ratio: CellRatio,
+    /// Re-split moves per sweep (`resplit`), run after the parameters are drawn; 0: none.
+    pub resplit_pairs: usize,
+    /// Density of the re-split moves; only the joint-distribution test passes anything
+    /// but the exact one.
+    pub resplit_target: ResplitTarget,
 }
 
 impl Default for SweepOptions<'_> {
@@ -72,6 +80,8 @@ impl Default for SweepOptions<'_> {
             counts: None,
             cells: None,
             cell_ratio: CellRatio::Exact,
+            resplit_pairs: 0,
+            resplit_target: ResplitTarget::Exact,
         }
     }
 }
@@ -147,11 +157,17 @@ pub fn sweep_opts(
     update_components(prior, &alloc.stats, state, &mut rng);
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
+    let data = PairData::Values {
+        x,
+        counts: opts.counts,
+    };
+    let resplits = run_resplits(&data, prior, state, key, index, opts);
     SweepOutcome {
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
         moves,
         cell_moves: CellTally::default(),
+        resplits,
     }
 }
 
@@ -194,12 +210,36 @@ fn cell_sweep(
         update_components_given_cells(prior, cells, &counts, state, opts.cell_ratio, &mut rng);
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
+    let resplits = run_resplits(&PairData::Cells(cells), prior, state, key, index, opts);
     SweepOutcome {
         loglik_before: loglik,
         occupied: n.iter().filter(|&&c| c > 0).count(),
         moves,
         cell_moves,
+        resplits,
     }
+}
+
+/// The re-split moves of a sweep, on their own stream.
+fn run_resplits(
+    data: &PairData<'_>,
+    prior: &Prior,
+    state: &mut State,
+    key: &StreamKey,
+    index: u64,
+    opts: &SweepOptions<'_>,
+) -> ResplitTally {
+    if opts.resplit_pairs == 0 {
+        return ResplitTally::default();
+    }
+    resplit(
+        data,
+        prior,
+        state,
+        opts.resplit_pairs,
+        opts.resplit_target,
+        &mut key.resplit_rng(index),
+    )
 }
 
 /// The allocation drawn given the parameters (reference arithmetic, recording each

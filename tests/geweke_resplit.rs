@@ -1,0 +1,199 @@
+//! Joint-distribution test (Geweke 2004, "Getting it right", JASA 99:799–804) of the
+//! re-split moves (src/sampler/resplit.rs): the conditional sweep followed by several
+//! re-split moves must leave p(θ | data) invariant, on exact values (all four kernel ×
+//! weight combinations) and on data recorded at a resolution (the counts-per-cell sweep).
+//! With three components and four moves a sweep, most of each sweep's change to the pair
+//! structure comes from the moves, so a wrong move shows: the same test must reject the
+//! moves with the Jacobian of their coordinates left out.
+
+mod geweke_support;
+use geweke_support as geweke;
+
+use geweke::{bonferroni_threshold, table, Plan, TestFn};
+use mixband::config::{Kernel, WeightsKind};
+use mixband::data::{Cells, Transform};
+use mixband::model::{Concentration, Prior, State, VarScale};
+use mixband::sampler::resplit::ResplitTarget;
+use mixband::sampler::rng::StreamKey;
+use mixband::sampler::{sweep_opts, SweepOptions};
+
+/// Re-split moves a sweep.
+const PAIRS: usize = 4;
+/// Width of a recorded cell, standard units, for the recorded-data case.
+const R: f64 = 0.5;
+
+fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
+    Prior {
+        kernel,
+        weights,
+        components: 3,
+        label_moves: weights == WeightsKind::StickBreaking,
+        collapsed: false,
+        centre: 0.0,
+        centre_sd: 1.5,
+        centre_shrink: 0.5,
+        var_shape: 4.0,
+        var_scale: VarScale::Gamma {
+            shape: 3.0,
+            rate: 2.0,
+        },
+        concentration: match weights {
+            WeightsKind::Dirichlet => Concentration::Fixed(1.0),
+            WeightsKind::StickBreaking => Concentration::Gamma {
+                shape: 2.0,
+                rate: 2.0,
+            },
+        },
+    }
+}
+
+fn cells_of(y: &[f64]) -> Cells {
+    let x: Vec<f64> = y.iter().map(|v| R * (v / R).round()).collect();
+    Cells::from_rows(&x, None, R, Transform::None, 0.0, 1.0)
+}
+
+fn test_fns() -> Vec<TestFn> {
+    fn w(s: &State) -> Vec<f64> {
+        s.weights()
+    }
+    vec![
+        TestFn {
+            name: "f(-1)",
+            f: |s, _| s.density(-1.0),
+        },
+        TestFn {
+            name: "f(0)",
+            f: |s, _| s.density(0.0),
+        },
+        TestFn {
+            name: "f(1.2)",
+            f: |s, _| s.density(1.2),
+        },
+        TestFn {
+            name: "sum w mu",
+            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b).sum(),
+        },
+        TestFn {
+            name: "sum w mu^2",
+            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b * b).sum(),
+        },
+        TestFn {
+            name: "sum w var",
+            f: |s, _| w(s).iter().zip(&s.var).map(|(a, b)| a * b).sum(),
+        },
+        TestFn {
+            name: "sum ln var",
+            f: |s, _| s.var.iter().map(|v| v.ln()).sum(),
+        },
+        TestFn {
+            name: "sum w^2",
+            f: |s, _| w(s).iter().map(|a| a * a).sum(),
+        },
+        TestFn {
+            name: "w_1",
+            f: |s, _| s.log_w[0].exp(),
+        },
+        TestFn {
+            name: "spread of means",
+            f: |s, _| {
+                let (lo, hi) =
+                    s.mu.iter()
+                        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &m| {
+                            (a.min(m), b.max(m))
+                        });
+                hi - lo
+            },
+        },
+        TestFn {
+            name: "mean y^2",
+            f: |_, y| y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64,
+        },
+    ]
+}
+
+const PLAN: Plan = Plan {
+    n_obs: 8,
+    mc_draws: 50_000,
+    sc_sweeps: 50_000,
+    batches: 50,
+    seed: 20_261_203,
+};
+
+/// Largest |z| and the table, for exact values or (`recorded`) their cells.
+fn worst(p: &Prior, plan: Plan, recorded: bool, target: ResplitTarget) -> (f64, String) {
+    let sweep = move |y: &[f64], p: &Prior, s: &mut State, k: &StreamKey, t: u64| {
+        let cells = recorded.then(|| cells_of(y));
+        let opts = SweepOptions {
+            cells: cells.as_ref(),
+            resplit_pairs: PAIRS,
+            resplit_target: target,
+            ..SweepOptions::default()
+        };
+        sweep_opts(y, p, s, k, t, &opts);
+    };
+    let cmp = geweke::run(p, plan, &test_fns(), &sweep);
+    let z = cmp.iter().map(|c| c.z.abs()).fold(0.0, f64::max);
+    (z, table(&cmp))
+}
+
+fn check(kernel: Kernel, weights: WeightsKind, recorded: bool, seed: u64) {
+    let p = prior(kernel, weights);
+    let limit = bonferroni_threshold(0.001, test_fns().len());
+    let (z, t) = worst(&p, Plan { seed, ..PLAN }, recorded, ResplitTarget::Exact);
+    assert!(
+        z < limit,
+        "{kernel:?} x {weights:?} (recorded {recorded}): |z| {z:.2} >= {limit:.2}\n{t}"
+    );
+}
+
+#[test]
+fn resplit_location_scale_dirichlet() {
+    check(Kernel::LocationScale, WeightsKind::Dirichlet, false, 51);
+}
+
+#[test]
+fn resplit_location_scale_stick_breaking() {
+    check(Kernel::LocationScale, WeightsKind::StickBreaking, false, 52);
+}
+
+#[test]
+fn resplit_location_dirichlet() {
+    check(Kernel::Location, WeightsKind::Dirichlet, false, 53);
+}
+
+#[test]
+fn resplit_location_stick_breaking() {
+    check(Kernel::Location, WeightsKind::StickBreaking, false, 54);
+}
+
+#[test]
+fn resplit_on_cells_location_scale_dirichlet() {
+    check(Kernel::LocationScale, WeightsKind::Dirichlet, true, 55);
+}
+
+#[test]
+fn resplit_on_cells_location_stick_breaking() {
+    check(Kernel::Location, WeightsKind::StickBreaking, true, 56);
+}
+
+/// The moves without the Jacobian of their coordinates sample the wrong law; the test
+/// must see it on both kernels.
+#[test]
+fn joint_test_rejects_the_moves_without_their_jacobian() {
+    let limit = bonferroni_threshold(0.001, test_fns().len());
+    let plan = Plan {
+        mc_draws: 20_000,
+        sc_sweeps: 20_000,
+        batches: 40,
+        seed: 57,
+        ..PLAN
+    };
+    for kernel in [Kernel::LocationScale, Kernel::Location] {
+        let p = prior(kernel, WeightsKind::Dirichlet);
+        let (z, t) = worst(&p, plan, false, ResplitTarget::WithoutJacobian);
+        assert!(
+            z > limit,
+            "{kernel:?}: missing Jacobian not detected: |z| {z:.2}\n{t}"
+        );
+    }
+}
