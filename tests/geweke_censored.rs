@@ -60,38 +60,8 @@ fn cells_of(y: &[f64], r: f64, told: f64) -> Cells {
 }
 
 fn test_fns() -> Vec<TestFn> {
-    fn w(s: &State) -> Vec<f64> {
-        s.weights()
-    }
-    vec![
-        TestFn {
-            name: "f(-1)",
-            f: |s, _| s.density(-1.0),
-        },
-        TestFn {
-            name: "f(0)",
-            f: |s, _| s.density(0.0),
-        },
-        TestFn {
-            name: "f(1.2)",
-            f: |s, _| s.density(1.2),
-        },
-        TestFn {
-            name: "sum w mu",
-            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b).sum(),
-        },
-        TestFn {
-            name: "sum w var",
-            f: |s, _| w(s).iter().zip(&s.var).map(|(a, b)| a * b).sum(),
-        },
-        TestFn {
-            name: "sum w^2",
-            f: |s, _| w(s).iter().map(|a| a * a).sum(),
-        },
-        TestFn {
-            name: "mean y^2",
-            f: |_, y| y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64,
-        },
+    let mut fns = geweke::mixture_fns();
+    fns.extend([
         TestFn {
             name: "censored loglik",
             f: |s, y| mixband::sampler::censored::loglik_censored(&cells_of(y, R, R), s),
@@ -100,7 +70,8 @@ fn test_fns() -> Vec<TestFn> {
             name: "var_scale",
             f: |s, _| s.var_scale,
         },
-    ]
+    ]);
+    fns
 }
 
 const PLAN: Plan = Plan {

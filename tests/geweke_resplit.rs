@@ -53,41 +53,15 @@ fn cells_of(y: &[f64]) -> Cells {
 }
 
 fn test_fns() -> Vec<TestFn> {
-    fn w(s: &State) -> Vec<f64> {
-        s.weights()
-    }
-    vec![
-        TestFn {
-            name: "f(-1)",
-            f: |s, _| s.density(-1.0),
-        },
-        TestFn {
-            name: "f(0)",
-            f: |s, _| s.density(0.0),
-        },
-        TestFn {
-            name: "f(1.2)",
-            f: |s, _| s.density(1.2),
-        },
-        TestFn {
-            name: "sum w mu",
-            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b).sum(),
-        },
+    let mut fns = geweke::mixture_fns();
+    fns.extend([
         TestFn {
             name: "sum w mu^2",
-            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b * b).sum(),
-        },
-        TestFn {
-            name: "sum w var",
-            f: |s, _| w(s).iter().zip(&s.var).map(|(a, b)| a * b).sum(),
+            f: |s, _| s.weights().iter().zip(&s.mu).map(|(a, b)| a * b * b).sum(),
         },
         TestFn {
             name: "sum ln var",
             f: |s, _| s.var.iter().map(|v| v.ln()).sum(),
-        },
-        TestFn {
-            name: "sum w^2",
-            f: |s, _| w(s).iter().map(|a| a * a).sum(),
         },
         TestFn {
             name: "w_1",
@@ -104,11 +78,8 @@ fn test_fns() -> Vec<TestFn> {
                 hi - lo
             },
         },
-        TestFn {
-            name: "mean y^2",
-            f: |_, y| y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64,
-        },
-    ]
+    ]);
+    fns
 }
 
 const PLAN: Plan = Plan {

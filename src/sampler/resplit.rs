@@ -240,6 +240,29 @@ fn store(prior: &Prior, state: &mut State, j: usize, k: usize, a: Component, b: 
     }
 }
 
+/// One slice-sampling step on each coordinate of `start` in turn, the others held.
+fn slice_each<const N: usize, R: Rng + ?Sized>(
+    start: [f64; N],
+    widths: [f64; N],
+    target: impl Fn([f64; N]) -> f64,
+    rng: &mut R,
+) -> [f64; N] {
+    let mut t = start;
+    for coord in 0..N {
+        t[coord] = slice_step(
+            t[coord],
+            widths[coord],
+            |v| {
+                let mut u = t;
+                u[coord] = v;
+                target(u)
+            },
+            rng,
+        );
+    }
+    t
+}
+
 /// Slice width on the logit of a share.
 const LOGIT_WIDTH: f64 = 1.0;
 
@@ -263,7 +286,7 @@ fn move_location_scale<R: Rng + ?Sized>(
     } else {
         (k, j)
     };
-    let Some((tot, mut t)) = to_coords(comp(lo), comp(hi)) else {
+    let Some((tot, t)) = to_coords(comp(lo), comp(hi)) else {
         return false;
     };
     let b = state.var_scale;
@@ -279,19 +302,7 @@ fn move_location_scale<R: Rng + ?Sized>(
             + jac * ln_j
     };
     let start = t;
-    for coord in 0..3 {
-        let s: &State = state;
-        t[coord] = slice_step(
-            t[coord],
-            LOGIT_WIDTH,
-            |v| {
-                let mut u = t;
-                u[coord] = v;
-                target(u, s)
-            },
-            rng,
-        );
-    }
+    let t = slice_each(start, [LOGIT_WIDTH; 3], |u| target(u, state), rng);
     if t == start {
         return false;
     }
@@ -344,20 +355,7 @@ fn move_location<R: Rng + ?Sized>(
             + jac * ln_j
     };
     let widths = [LOGIT_WIDTH, var.sqrt()];
-    let mut c = start;
-    for coord in 0..2 {
-        let s: &State = state;
-        c[coord] = slice_step(
-            c[coord],
-            widths[coord],
-            |x| {
-                let mut e = c;
-                e[coord] = x;
-                target(e, s)
-            },
-            rng,
-        );
-    }
+    let c = slice_each(start, widths, |e| target(e, state), rng);
     if c == start {
         return false;
     }

@@ -132,3 +132,42 @@ pub fn expected_count(state: &State, y: &[f64], k: usize) -> f64 {
     }
     total
 }
+
+/// Test functions every mixture sweep shares: the density at three points, the weighted
+/// means of the component means and variances, the sum of squared weights, and the data's
+/// second moment.
+pub fn mixture_fns() -> Vec<TestFn> {
+    fn w(s: &State) -> Vec<f64> {
+        s.weights()
+    }
+    vec![
+        TestFn {
+            name: "f(-1)",
+            f: |s, _| s.density(-1.0),
+        },
+        TestFn {
+            name: "f(0)",
+            f: |s, _| s.density(0.0),
+        },
+        TestFn {
+            name: "f(1.2)",
+            f: |s, _| s.density(1.2),
+        },
+        TestFn {
+            name: "sum w mu",
+            f: |s, _| w(s).iter().zip(&s.mu).map(|(a, b)| a * b).sum(),
+        },
+        TestFn {
+            name: "sum w var",
+            f: |s, _| w(s).iter().zip(&s.var).map(|(a, b)| a * b).sum(),
+        },
+        TestFn {
+            name: "sum w^2",
+            f: |s, _| w(s).iter().map(|a| a * a).sum(),
+        },
+        TestFn {
+            name: "mean y^2",
+            f: |_, y| y.iter().map(|v| v * v).sum::<f64>() / y.len() as f64,
+        },
+    ]
+}
