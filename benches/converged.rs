@@ -16,7 +16,8 @@
 //! (d: every sample is recorded to d decimals and the config says so with
 //! `[data] resolution = 10^-d`, the data-recorded-at-a-resolution case; unset: the values
 //! are written in full and treated as exact, the demo generator's to one decimal),
-//! CONVERGED_RESPLIT (m: `[sampler] resplit_moves = m`, docs/model.md "Re-split moves").
+//! CONVERGED_RESPLIT and CONVERGED_RELOCATE (m: `[sampler] resplit_moves = m`,
+//! `relocate_moves = m`, docs/model.md "Re-split moves" and "Relocation moves").
 
 #[path = "support/densities.rs"]
 mod densities;
@@ -83,7 +84,7 @@ fn read_diagnostics(path: &Path) -> Result<(bool, f64, f64), String> {
 fn run_one(
     bin: &Path,
     dir: &Path,
-    (d, recorded, resplit): (&Density, Option<usize>, Option<usize>),
+    (d, recorded, moves): (&Density, Option<usize>, &str),
     n: usize,
     seed: u64,
     timeout: f64,
@@ -93,7 +94,6 @@ fn run_one(
     let resolution = recorded.map_or(String::new(), |d| {
         format!("resolution = {}\n", 10f64.powi(-(d as i32)))
     });
-    let moves = resplit.map_or(String::new(), |m| format!("resplit_moves = {m}\n"));
     if let Err(e) = std::fs::create_dir_all(dir)
         .and_then(|_| std::fs::write(dir.join("data.csv"), csv))
         .and_then(|_| {
@@ -164,9 +164,18 @@ fn main() {
     let recorded: Option<usize> = std::env::var("CONVERGED_DECIMALS")
         .ok()
         .and_then(|v| v.parse().ok());
-    let resplit: Option<usize> = std::env::var("CONVERGED_RESPLIT")
-        .ok()
-        .and_then(|v| v.parse().ok());
+    let mut moves = String::new();
+    for (var, key) in [
+        ("CONVERGED_RESPLIT", "resplit_moves"),
+        ("CONVERGED_RELOCATE", "relocate_moves"),
+    ] {
+        if let Some(m) = std::env::var(var)
+            .ok()
+            .and_then(|v| v.parse::<usize>().ok())
+        {
+            moves += &format!("{key} = {m}\n");
+        }
+    }
     let scratch = std::env::temp_dir().join(format!("mixband-converged-{}", std::process::id()));
     let root = keep.clone().unwrap_or_else(|| scratch.clone());
     let mut all = densities();
@@ -177,8 +186,8 @@ fn main() {
     if let Some(d) = recorded {
         println!("samples recorded to {d} decimals, `[data] resolution` set to match");
     }
-    if let Some(m) = resplit {
-        println!("`[sampler] resplit_moves = {m}`");
+    if !moves.is_empty() {
+        println!("[sampler] {}", moves.trim().replace('\n', ", "));
     }
     println!(
         "{:<18} {:>9} {:>9} {:>14} {:>11} {:>12} {:>10}",
@@ -192,7 +201,7 @@ fn main() {
             let seed = 7000 + 10 * i as u64;
             let dir = root.join(format!("{}-{n}", d.name.replace(' ', "-")));
             let label = d.name.split_whitespace().next().unwrap_or(d.name);
-            match run_one(&bin, &dir, (d, recorded, resplit), n, seed, timeout) {
+            match run_one(&bin, &dir, (d, recorded, &moves), n, seed, timeout) {
                 Outcome::Finished {
                     wall,
                     passed,

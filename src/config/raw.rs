@@ -149,6 +149,9 @@ pub struct SamplerSection {
     /// Re-split moves per sweep (0: none; see docs/model.md, "Re-split moves").
     #[serde(skip_serializing_if = "Option::is_none")]
     pub resplit_moves: Option<i64>,
+    /// Relocation moves per sweep (0: none; see docs/model.md, "Relocation moves").
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub relocate_moves: Option<i64>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

@@ -32,7 +32,7 @@ pub fn parse_config_str(text: &str, origin: &str) -> Result<RawConfig> {
     })
 }
 
-/// Most re-split moves a sweep (each costs a few passes over the data or its cells).
+/// Most re-split or relocation moves a sweep (each costs a few passes over the data or its cells).
 const MAX_RESPLIT: i64 = 1000;
 
 /// Largest sample for which `[sampler] allocation` defaults to "collapsed".
@@ -77,6 +77,8 @@ pub struct RunConfig {
     pub allocation: AllocationKind,
     /// `[sampler] resplit_moves`: re-split moves per sweep (0: none).
     pub resplit_moves: usize,
+    /// `[sampler] relocate_moves`: relocation moves per sweep (0: none).
+    pub relocate_moves: usize,
     pub grid_from: f64,
     pub grid_to: f64,
     pub grid_points: usize,
@@ -272,6 +274,14 @@ pub fn resolve(
         "sampler",
         "resplit_moves",
         s.resplit_moves,
+        0,
+        MAX_RESPLIT,
+        0,
+    )?;
+    let relocate_moves = ck.int_in(
+        "sampler",
+        "relocate_moves",
+        s.relocate_moves,
         0,
         MAX_RESPLIT,
         0,
@@ -477,6 +487,7 @@ pub fn resolve(
         label_moves: s.label_moves.unwrap_or(true),
         allocation,
         resplit_moves,
+        relocate_moves,
         grid_from,
         grid_to,
         grid_points: points,
@@ -601,6 +612,7 @@ impl RunConfig {
                 label_moves: (!dir).then_some(self.label_moves),
                 allocation: Some(self.allocation),
                 resplit_moves: (self.resplit_moves > 0).then_some(self.resplit_moves as i64),
+                relocate_moves: (self.relocate_moves > 0).then_some(self.relocate_moves as i64),
             }),
             grid: Some(GridSection {
                 from: Some(self.grid_from),

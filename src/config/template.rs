@@ -51,6 +51,7 @@ thin = 1                      # keep every thin-th sweep after warm-up
 label_moves = true            # label-switching moves for stick-breaking weights (docs/model.md)
 # allocation = "collapsed"    # "collapsed" (default up to 20 000 observations) or "conditional"
 resplit_moves = 0             # re-split moves of a pair of components per sweep (docs/model.md)
+relocate_moves = 0            # relocation moves of one component per sweep (docs/model.md)
 # chain_ids = [1, 2]          # run only these chains, for jobs joined by `mixband merge`
 
 [grid]                        # where the density is evaluated

@@ -415,8 +415,18 @@ fn sweep_description(c: &crate::config::RunConfig) -> String {
         }
         (crate::config::AllocationKind::Conditional, false) => "conditional allocation step",
     };
-    match c.resplit_moves {
-        0 => step.to_string(),
-        m => format!("{step}, then {m} re-split moves of a pair of components"),
+    let mut out = step.to_string();
+    if c.resplit_moves > 0 {
+        out += &format!(
+            ", then {} re-split moves of a pair of components",
+            c.resplit_moves
+        );
     }
+    if c.relocate_moves > 0 {
+        out += &format!(
+            ", then {} relocation moves of one component",
+            c.relocate_moves
+        );
+    }
+    out
 }

@@ -383,6 +383,7 @@ fn run_one(
         counts: prep.data.counts.as_deref(),
         cells: prep.cells.as_ref(),
         resplit_pairs: prep.config.resplit_moves,
+        relocate_moves: prep.config.relocate_moves,
         ..SweepOptions::default()
     };
     let stop_kind = run_chain_opts(x, &prep.prior, &key, plan, start, &mut writer, stop, &opts)?;

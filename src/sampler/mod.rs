@@ -21,6 +21,8 @@ pub mod hyper;
 mod init;
 pub mod label_moves;
 pub mod pair_coords;
+mod pair_target;
+pub mod relocate;
 pub mod resplit;
 pub mod rng;
 mod slice;

@@ -24,6 +24,8 @@ const COLLAPSED_STREAM: u64 = u64::MAX - 2;
 const SPLIT_MERGE_STREAM: u64 = u64::MAX - 3;
 /// Block index reserved for the re-split moves of a sweep (see `resplit`).
 const RESPLIT_STREAM: u64 = u64::MAX - 4;
+/// Block index reserved for the relocation moves of a sweep (see `relocate`).
+const RELOCATE_STREAM: u64 = u64::MAX - 5;
 /// Sweep index reserved for initialisation.
 const INIT_SWEEP: u64 = u64::MAX;
 /// Sweep index of the model check's streams (`src/check/`), under chain 0, which no chain
@@ -91,6 +93,11 @@ impl StreamKey {
     /// Generator for the re-split moves in sweep `sweep`.
     pub fn resplit_rng(&self, sweep: u64) -> ChaCha8Rng {
         self.rng(sweep, RESPLIT_STREAM)
+    }
+
+    /// Generator for the relocation moves in sweep `sweep`.
+    pub fn relocate_rng(&self, sweep: u64) -> ChaCha8Rng {
+        self.rng(sweep, RELOCATE_STREAM)
     }
 
     /// Generator for the chain's starting point.

@@ -24,6 +24,8 @@ use super::hyper::{pin_fixed, update_concentration, update_var_scale};
 use super::label_moves::{
     label_moves, label_moves_carrying, label_moves_counts, MoveRatios, MoveTally, EXACT,
 };
+use super::pair_target::Terms;
+use super::relocate::{relocate, RelocateTally, RelocateTarget};
 use super::resplit::{resplit, PairData, ResplitTally, ResplitTarget};
 use super::rng::StreamKey;
 use super::var_scale::update_var_scale_given_stats;
@@ -46,6 +48,8 @@ pub struct SweepOutcome {
     pub cell_moves: CellTally,
     /// Pairs tried and moved by the re-split moves.
     pub resplits: ResplitTally,
+    /// Relocation proposals made and accepted.
+    pub relocations: RelocateTally,
 }
 
 /// How a sweep runs beyond the model: none of these change what it samples from.
@@ -70,6 +74,11 @@ pub struct SweepOptions<'a> {
     /// Density of the re-split moves; only the joint-distribution test passes anything
     /// but the exact one.
     pub resplit_target: ResplitTarget,
+    /// Relocation proposals per sweep (`relocate`), after the re-split moves; 0: none.
+    pub relocate_moves: usize,
+    /// Ratio of the relocation moves; only the joint-distribution test passes anything
+    /// but the exact one.
+    pub relocate_target: RelocateTarget,
 }
 
 impl Default for SweepOptions<'_> {
@@ -82,6 +91,8 @@ impl Default for SweepOptions<'_> {
             cell_ratio: CellRatio::Exact,
             resplit_pairs: 0,
             resplit_target: ResplitTarget::Exact,
+            relocate_moves: 0,
+            relocate_target: RelocateTarget::Exact,
         }
     }
 }
@@ -161,13 +172,14 @@ pub fn sweep_opts(
         x,
         counts: opts.counts,
     };
-    let resplits = run_resplits(&data, prior, state, key, index, opts);
+    let (resplits, relocations) = run_pair_moves(&data, prior, state, key, index, opts);
     SweepOutcome {
         loglik_before: alloc.loglik,
         occupied: alloc.stats.occupied(),
         moves,
         cell_moves: CellTally::default(),
         resplits,
+        relocations,
     }
 }
 
@@ -210,36 +222,51 @@ fn cell_sweep(
         update_components_given_cells(prior, cells, &counts, state, opts.cell_ratio, &mut rng);
     update_var_scale(prior, state, &mut rng);
     update_concentration(prior, state, &mut rng);
-    let resplits = run_resplits(&PairData::Cells(cells), prior, state, key, index, opts);
+    let (resplits, relocations) =
+        run_pair_moves(&PairData::Cells(cells), prior, state, key, index, opts);
     SweepOutcome {
         loglik_before: loglik,
         occupied: n.iter().filter(|&&c| c > 0).count(),
         moves,
         cell_moves,
         resplits,
+        relocations,
     }
 }
 
-/// The re-split moves of a sweep, on their own stream.
-fn run_resplits(
+/// The re-split and relocation moves of a sweep, each on its own stream, sharing one
+/// table of the components' terms.
+fn run_pair_moves(
     data: &PairData<'_>,
     prior: &Prior,
     state: &mut State,
     key: &StreamKey,
     index: u64,
     opts: &SweepOptions<'_>,
-) -> ResplitTally {
-    if opts.resplit_pairs == 0 {
-        return ResplitTally::default();
+) -> (ResplitTally, RelocateTally) {
+    if opts.resplit_pairs == 0 && opts.relocate_moves == 0 {
+        return Default::default();
     }
-    resplit(
+    let mut terms = Terms::new(data, state);
+    let resplits = resplit(
         data,
+        &mut terms,
         prior,
         state,
         opts.resplit_pairs,
         opts.resplit_target,
         &mut key.resplit_rng(index),
-    )
+    );
+    let relocations = relocate(
+        data,
+        &mut terms,
+        prior,
+        state,
+        opts.relocate_moves,
+        opts.relocate_target,
+        &mut key.relocate_rng(index),
+    );
+    (resplits, relocations)
 }
 
 /// The allocation drawn given the parameters (reference arithmetic, recording each

@@ -1,10 +1,11 @@
 //! Joint-distribution test (Geweke 2004, "Getting it right", JASA 99:799–804) of the
-//! re-split moves (src/sampler/resplit.rs): the conditional sweep followed by several
-//! re-split moves must leave p(θ | data) invariant, on exact values (all four kernel ×
-//! weight combinations) and on data recorded at a resolution (the counts-per-cell sweep).
-//! With three components and four moves a sweep, most of each sweep's change to the pair
-//! structure comes from the moves, so a wrong move shows: the same test must reject the
-//! moves with the Jacobian of their coordinates left out.
+//! pair moves: re-split (src/sampler/resplit.rs) and relocation (src/sampler/relocate.rs).
+//! The conditional sweep followed by several moves must leave p(θ | data) invariant, on
+//! exact values (all four kernel × weight combinations) and on data recorded at a
+//! resolution (the counts-per-cell sweep). With three components and four moves a sweep,
+//! much of each sweep's change to the pair structure comes from the moves, so a wrong
+//! move shows: the same test must reject the re-split moves with the Jacobian of their
+//! coordinates left out, and the relocation moves without their proposal's densities.
 
 mod geweke_support;
 use geweke_support as geweke;
@@ -13,12 +14,41 @@ use geweke::{bonferroni_threshold, table, Plan, TestFn};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::data::{Cells, Transform};
 use mixband::model::{Concentration, Prior, State, VarScale};
+use mixband::sampler::relocate::RelocateTarget;
 use mixband::sampler::resplit::ResplitTarget;
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::{sweep_opts, SweepOptions};
 
-/// Re-split moves a sweep.
+/// Moves of each kind a sweep.
 const PAIRS: usize = 4;
+
+/// Which moves run, and with which ratios.
+#[derive(Clone, Copy)]
+struct Moves {
+    resplit: usize,
+    relocate: usize,
+    resplit_target: ResplitTarget,
+    relocate_target: RelocateTarget,
+}
+
+const RESPLIT: Moves = Moves {
+    resplit: PAIRS,
+    relocate: 0,
+    resplit_target: ResplitTarget::Exact,
+    relocate_target: RelocateTarget::Exact,
+};
+
+const RELOCATE: Moves = Moves {
+    resplit: 0,
+    relocate: PAIRS,
+    ..RESPLIT
+};
+
+const BOTH: Moves = Moves {
+    resplit: PAIRS,
+    relocate: PAIRS,
+    ..RESPLIT
+};
 /// Width of a recorded cell, standard units, for the recorded-data case.
 const R: f64 = 0.5;
 
@@ -91,13 +121,15 @@ const PLAN: Plan = Plan {
 };
 
 /// Largest |z| and the table, for exact values or (`recorded`) their cells.
-fn worst(p: &Prior, plan: Plan, recorded: bool, target: ResplitTarget) -> (f64, String) {
+fn worst(p: &Prior, plan: Plan, recorded: bool, moves: Moves) -> (f64, String) {
     let sweep = move |y: &[f64], p: &Prior, s: &mut State, k: &StreamKey, t: u64| {
         let cells = recorded.then(|| cells_of(y));
         let opts = SweepOptions {
             cells: cells.as_ref(),
-            resplit_pairs: PAIRS,
-            resplit_target: target,
+            resplit_pairs: moves.resplit,
+            resplit_target: moves.resplit_target,
+            relocate_moves: moves.relocate,
+            relocate_target: moves.relocate_target,
             ..SweepOptions::default()
         };
         sweep_opts(y, p, s, k, t, &opts);
@@ -108,9 +140,13 @@ fn worst(p: &Prior, plan: Plan, recorded: bool, target: ResplitTarget) -> (f64, 
 }
 
 fn check(kernel: Kernel, weights: WeightsKind, recorded: bool, seed: u64) {
+    check_moves(kernel, weights, recorded, seed, RESPLIT);
+}
+
+fn check_moves(kernel: Kernel, weights: WeightsKind, recorded: bool, seed: u64, moves: Moves) {
     let p = prior(kernel, weights);
     let limit = bonferroni_threshold(0.001, test_fns().len());
-    let (z, t) = worst(&p, Plan { seed, ..PLAN }, recorded, ResplitTarget::Exact);
+    let (z, t) = worst(&p, Plan { seed, ..PLAN }, recorded, moves);
     assert!(
         z < limit,
         "{kernel:?} x {weights:?} (recorded {recorded}): |z| {z:.2} >= {limit:.2}\n{t}"
@@ -161,10 +197,115 @@ fn joint_test_rejects_the_moves_without_their_jacobian() {
     };
     for kernel in [Kernel::LocationScale, Kernel::Location] {
         let p = prior(kernel, WeightsKind::Dirichlet);
-        let (z, t) = worst(&p, plan, false, ResplitTarget::WithoutJacobian);
+        let wrong = Moves {
+            resplit_target: ResplitTarget::WithoutJacobian,
+            ..RESPLIT
+        };
+        let (z, t) = worst(&p, plan, false, wrong);
         assert!(
             z > limit,
             "{kernel:?}: missing Jacobian not detected: |z| {z:.2}\n{t}"
         );
     }
+}
+
+#[test]
+fn relocate_location_scale_dirichlet() {
+    check_moves(
+        Kernel::LocationScale,
+        WeightsKind::Dirichlet,
+        false,
+        61,
+        RELOCATE,
+    );
+}
+
+#[test]
+fn relocate_location_scale_stick_breaking() {
+    check_moves(
+        Kernel::LocationScale,
+        WeightsKind::StickBreaking,
+        false,
+        62,
+        RELOCATE,
+    );
+}
+
+#[test]
+fn relocate_location_dirichlet() {
+    check_moves(
+        Kernel::Location,
+        WeightsKind::Dirichlet,
+        false,
+        63,
+        RELOCATE,
+    );
+}
+
+#[test]
+fn relocate_location_stick_breaking() {
+    check_moves(
+        Kernel::Location,
+        WeightsKind::StickBreaking,
+        false,
+        64,
+        RELOCATE,
+    );
+}
+
+#[test]
+fn both_moves_on_cells_location_scale_dirichlet() {
+    check_moves(
+        Kernel::LocationScale,
+        WeightsKind::Dirichlet,
+        true,
+        65,
+        BOTH,
+    );
+}
+
+#[test]
+fn both_moves_on_cells_location_stick_breaking() {
+    check_moves(Kernel::Location, WeightsKind::StickBreaking, true, 66, BOTH);
+}
+
+/// The relocation moves without q(x) / q(x′) in their ratio sample the wrong law; the
+/// test must see it on both kernels.
+#[test]
+fn joint_test_rejects_relocation_without_its_proposal_ratio() {
+    let limit = bonferroni_threshold(0.001, test_fns().len());
+    let plan = Plan {
+        mc_draws: 20_000,
+        sc_sweeps: 20_000,
+        batches: 40,
+        seed: 67,
+        ..PLAN
+    };
+    for kernel in [Kernel::LocationScale, Kernel::Location] {
+        let p = prior(kernel, WeightsKind::Dirichlet);
+        let wrong = Moves {
+            relocate_target: RelocateTarget::WithoutProposal,
+            ..RELOCATE
+        };
+        let (z, t) = worst(&p, plan, false, wrong);
+        assert!(
+            z > limit,
+            "{kernel:?}: missing proposal ratio not detected: |z| {z:.2}\n{t}"
+        );
+    }
+}
+
+/// The moves after the collapsed sweep (the default up to 20 000 observations).
+#[test]
+fn both_moves_after_the_collapsed_sweep() {
+    let p = Prior {
+        collapsed: true,
+        ..prior(Kernel::LocationScale, WeightsKind::StickBreaking)
+    };
+    let limit = bonferroni_threshold(0.001, test_fns().len());
+    let (z, t) = worst(&p, Plan { seed: 68, ..PLAN }, false, BOTH);
+    assert!(
+        z < limit,
+        "collapsed sweep with both moves: |z| {z:.2} >= {limit:.2}\n{t}"
+    );
 }
