@@ -20,7 +20,7 @@ use geweke_support as geweke;
 use geweke::{bonferroni_threshold, table, Plan, TestFn};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::data::{Cells, Transform};
-use mixband::model::{Concentration, Prior, State, VarScale};
+use mixband::model::{Prior, State};
 use mixband::sampler::cell_params::CellRatio;
 use mixband::sampler::rng::StreamKey;
 use mixband::sampler::{sweep_opts, SweepOptions};
@@ -29,28 +29,7 @@ use mixband::sampler::{sweep_opts, SweepOptions};
 const R: f64 = 0.8;
 
 fn prior(kernel: Kernel, weights: WeightsKind, collapsed: bool) -> Prior {
-    Prior {
-        kernel,
-        weights,
-        components: 3,
-        label_moves: weights == WeightsKind::StickBreaking,
-        collapsed,
-        centre: 0.0,
-        centre_sd: 1.5,
-        centre_shrink: 0.5,
-        var_shape: 4.0,
-        var_scale: VarScale::Gamma {
-            shape: 3.0,
-            rate: 2.0,
-        },
-        concentration: match weights {
-            WeightsKind::Dirichlet => Concentration::Fixed(1.0),
-            WeightsKind::StickBreaking => Concentration::Gamma {
-                shape: 2.0,
-                rate: 2.0,
-            },
-        },
-    }
+    geweke::small_prior(kernel, weights, collapsed)
 }
 
 /// The cells of `y` recorded at resolution `r`, told to the sampler with width `told`.

@@ -13,7 +13,7 @@ use geweke_support as geweke;
 use geweke::{bonferroni_threshold, table, Plan, TestFn};
 use mixband::config::{Kernel, WeightsKind};
 use mixband::data::{Cells, Transform};
-use mixband::model::{Concentration, Prior, State, VarScale};
+use mixband::model::{Prior, State};
 use mixband::sampler::relocate::RelocateTarget;
 use mixband::sampler::resplit::ResplitTarget;
 use mixband::sampler::rng::StreamKey;
@@ -53,28 +53,7 @@ const BOTH: Moves = Moves {
 const R: f64 = 0.5;
 
 fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
-    Prior {
-        kernel,
-        weights,
-        components: 3,
-        label_moves: weights == WeightsKind::StickBreaking,
-        collapsed: false,
-        centre: 0.0,
-        centre_sd: 1.5,
-        centre_shrink: 0.5,
-        var_shape: 4.0,
-        var_scale: VarScale::Gamma {
-            shape: 3.0,
-            rate: 2.0,
-        },
-        concentration: match weights {
-            WeightsKind::Dirichlet => Concentration::Fixed(1.0),
-            WeightsKind::StickBreaking => Concentration::Gamma {
-                shape: 2.0,
-                rate: 2.0,
-            },
-        },
-    }
+    geweke::small_prior(kernel, weights, false)
 }
 
 fn cells_of(y: &[f64]) -> Cells {

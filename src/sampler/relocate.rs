@@ -28,6 +28,7 @@
 use rand::Rng;
 use statrs::function::gamma::ln_gamma;
 
+use super::label_moves::distinct_pair;
 use super::pair_coords::{ln_shares, Component};
 use super::pair_target::{ln_lik_with, ln_weight_prior, store, PairData, Terms};
 use crate::config::Kernel;
@@ -185,11 +186,7 @@ pub(crate) fn relocate<R: Rng + ?Sized>(
     }
     let mut rest = vec![0.0; data.len()];
     for _ in 0..moves {
-        let e = rng.random_range(0..k);
-        let mut o = rng.random_range(0..k - 1);
-        if o >= e {
-            o += 1;
-        }
+        let (e, o) = distinct_pair(k, rng);
         tally.proposed += 1;
         terms.rest(state, e, o, &mut rest);
         if one_move(data, terms, prior, state, (e, o), &rest, target, rng) {

@@ -28,6 +28,7 @@
 
 use rand::Rng;
 
+use super::label_moves::distinct_pair;
 use super::pair_coords::{from_coords, to_coords, Component};
 pub use super::pair_target::PairData;
 use super::pair_target::{ln_lik, ln_nig_prior, ln_weight_prior, store, Terms};
@@ -75,11 +76,7 @@ pub(crate) fn resplit<R: Rng + ?Sized>(
     }
     let mut rest = vec![0.0; data.len()];
     for _ in 0..pairs {
-        let j = rng.random_range(0..k);
-        let mut l = rng.random_range(0..k - 1);
-        if l >= j {
-            l += 1;
-        }
+        let (j, l) = distinct_pair(k, rng);
         tally.tried += 1;
         terms.rest(state, j, l, &mut rest);
         let moved = match prior.kernel {

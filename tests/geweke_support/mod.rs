@@ -171,3 +171,37 @@ pub fn mixture_fns() -> Vec<TestFn> {
         },
     ]
 }
+
+/// The small prior the sampler's joint-distribution tests share: three components, a
+/// Gamma prior on the variance scale, Dirichlet(1) weights or stick-breaking weights with
+/// α ~ Gamma(2, 2) (label moves on).
+pub fn small_prior(
+    kernel: mixband::config::Kernel,
+    weights: mixband::config::WeightsKind,
+    collapsed: bool,
+) -> Prior {
+    use mixband::config::WeightsKind;
+    use mixband::model::{Concentration, VarScale};
+    Prior {
+        kernel,
+        weights,
+        components: 3,
+        label_moves: weights == WeightsKind::StickBreaking,
+        collapsed,
+        centre: 0.0,
+        centre_sd: 1.5,
+        centre_shrink: 0.5,
+        var_shape: 4.0,
+        var_scale: VarScale::Gamma {
+            shape: 3.0,
+            rate: 2.0,
+        },
+        concentration: match weights {
+            WeightsKind::Dirichlet => Concentration::Fixed(1.0),
+            WeightsKind::StickBreaking => Concentration::Gamma {
+                shape: 2.0,
+                rate: 2.0,
+            },
+        },
+    }
+}
