@@ -42,13 +42,34 @@ impl PairData<'_> {
     /// ln f(i) for a component N(μ, sd²): the log density at a value, or the log
     /// probability of a cell.
     #[inline]
-    pub(crate) fn ln_comp(&self, i: usize, mu: f64, sd: f64) -> f64 {
+    pub(crate) fn ln_comp(&self, i: usize, c: &Kern) -> f64 {
         match self {
             PairData::Values { x, .. } => {
-                let z = (x[i] - mu) / sd;
-                -0.5 * z * z - sd.ln() - LN_SQRT_2PI
+                let z = (x[i] - c.mu) / c.sd;
+                -0.5 * z * z - c.ln_sd - LN_SQRT_2PI
             }
-            PairData::Cells(c) => ln_std_normal_interval((c.lo[i] - mu) / sd, (c.hi[i] - mu) / sd),
+            PairData::Cells(cells) => {
+                ln_std_normal_interval((cells.lo[i] - c.mu) / c.sd, (cells.hi[i] - c.mu) / c.sd)
+            }
+        }
+    }
+}
+
+/// A component's normal with its ln sd worked out once.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Kern {
+    pub mu: f64,
+    pub sd: f64,
+    pub ln_sd: f64,
+}
+
+impl Kern {
+    pub(crate) fn new(mu: f64, var: f64) -> Kern {
+        let sd = var.sqrt();
+        Kern {
+            mu,
+            sd,
+            ln_sd: sd.ln(),
         }
     }
 }
@@ -78,9 +99,9 @@ impl Terms {
 
     /// Recomputes component `l`'s terms from the state.
     pub(crate) fn update(&mut self, data: &PairData<'_>, state: &State, l: usize) {
-        let (mu, sd) = (state.mu[l], state.var[l].sqrt());
+        let c = Kern::new(state.mu[l], state.var[l]);
         for i in 0..data.len() {
-            self.lnf[i * self.k + l] = data.ln_comp(i, mu, sd);
+            self.lnf[i * self.k + l] = data.ln_comp(i, &c);
         }
     }
 
@@ -126,12 +147,12 @@ pub(crate) fn ln_lik_with(
 
 /// Σ_i m_i ln(A_i + w_1 f_1(i) + w_2 f_2(i)) for a pair at new parameters.
 pub(crate) fn ln_lik(data: &PairData<'_>, rest: &[f64], a: Component, b: Component) -> f64 {
-    let (sa, sb) = (a.var.sqrt(), b.var.sqrt());
+    let (ka, kb) = (Kern::new(a.mu, a.var), Kern::new(b.mu, b.var));
     ln_lik_with(
         data,
         rest,
-        |i| a.log_w + data.ln_comp(i, a.mu, sa),
-        |i| b.log_w + data.ln_comp(i, b.mu, sb),
+        |i| a.log_w + data.ln_comp(i, &ka),
+        |i| b.log_w + data.ln_comp(i, &kb),
     )
 }
 

@@ -30,7 +30,7 @@ use statrs::function::gamma::ln_gamma;
 
 use super::label_moves::distinct_pair;
 use super::pair_coords::{ln_shares, Component};
-use super::pair_target::{ln_lik_with, ln_weight_prior, store, PairData, Terms};
+use super::pair_target::{ln_lik_with, ln_weight_prior, store, Kern, PairData, Terms};
 use crate::config::Kernel;
 use crate::dist::{inv_gamma, log_add_exp, normal, LN_SQRT_2PI};
 use crate::model::{Prior, State};
@@ -245,8 +245,9 @@ fn one_move<R: Rng + ?Sized>(
         // q.ln_prior is already the density in (μ, η); ln(s(1 − s)) is the share's.
         ln_weight_prior(prior, state, e, o, lw_e, lw_o) + q.ln_prior(p) + lik + ls_e + ls_o
     };
-    let sd_new = (0.5 * proposed.eta).exp();
-    let t_new = ln_target(proposed, &|i| data.ln_comp(i, proposed.mu, sd_new));
+    let var_new = if ls { proposed.eta.exp() } else { state.var[e] };
+    let kern = Kern::new(proposed.mu, var_new);
+    let t_new = ln_target(proposed, &|i| data.ln_comp(i, &kern));
     let t_now = ln_target(now, &|i| terms.get(i, e));
     let correction = match target {
         RelocateTarget::Exact => q.ln_density(now) - q.ln_density(proposed),
@@ -260,11 +261,10 @@ fn one_move<R: Rng + ?Sized>(
         return false;
     }
     let (ls_e, ls_o) = ln_shares(proposed.t);
-    let var_e = if ls { proposed.eta.exp() } else { state.var[e] };
     let a = Component {
         log_w: log_total + ls_e,
         mu: proposed.mu,
-        var: var_e,
+        var: var_new,
     };
     let b = Component {
         log_w: log_total + ls_o,
