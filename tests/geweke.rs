@@ -16,6 +16,7 @@
 //! which shows the test has power.
 
 mod common;
+mod geweke_support;
 
 use common::{batch_means_se, bonferroni_z, mean, var};
 use mixband::config::{Kernel, WeightsKind};
@@ -48,28 +49,10 @@ fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
 /// sweep also runs its label moves (the count-based ones of the collapsed sweep).
 fn prior_with(kernel: Kernel, weights: WeightsKind, collapsed: bool) -> Prior {
     Prior {
-        kernel,
-        weights,
-        components: 3,
         // The conditional sweep's label moves have their own joint-distribution test
         // (tests/geweke_label_moves.rs).
         label_moves: collapsed && weights == WeightsKind::StickBreaking,
-        collapsed,
-        centre: 0.0,
-        centre_sd: 1.5,
-        centre_shrink: 0.5,
-        var_shape: 4.0,
-        var_scale: VarScale::Gamma {
-            shape: 3.0,
-            rate: 2.0,
-        },
-        concentration: match weights {
-            WeightsKind::Dirichlet => Concentration::Fixed(1.0),
-            WeightsKind::StickBreaking => Concentration::Gamma {
-                shape: 2.0,
-                rate: 2.0,
-            },
-        },
+        ..geweke_support::small_prior(kernel, weights, collapsed)
     }
 }
 
