@@ -55,7 +55,7 @@ pub(super) fn advice(failures: &[Failure], c: AdviceContext) -> Vec<String> {
                  lowest ESS ({lowest:.0}) above {}, {} times this run's length, which is unlikely to be \
                  practical: the chains barely move (the usual cause is a large sample: docs/model.md, \"Large \
                  samples mix badly\"; figures in docs/performance.md, \"Time to a converged answer\"), so \
-                 report nothing from this run. On large samples `[sampler] resplit_moves = 3` raises the ESS \
+                 report nothing from this run. If the run has no re-split moves, `[sampler] resplit_moves = 3` raises the ESS \
                  per draw several times over at about six times the cost of a sweep, not always enough to pass \
                  (docs/model.md, \"Re-split moves\")",
                 c.min_ess,
