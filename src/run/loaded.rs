@@ -47,25 +47,8 @@ pub fn load_sample<R: Read>(
     data_origin: &str,
 ) -> Result<Loaded> {
     let Some(resolution) = config.resolution else {
-        let sample = load_weighted_from_reader(
-            reader,
-            loader_origin,
-            &config.column,
-            config.freq_weights.as_deref(),
-            config.missing,
-        )?;
-        let fitted =
-            config
-                .transform
-                .apply(&sample.values, &sample.origins, data_origin, &config.column)?;
-        let recording = Recording::detect(&sample.values, sample.counts.as_deref(), None);
-        return Ok(Loaded {
-            values: sample.values,
-            counts: sample.counts,
-            dropped: sample.dropped,
-            fitted,
-            recording,
-        });
+        // Without a resolution every row is kept: the in-memory path is the path.
+        return load_sample_in_memory(reader, config, loader_origin, data_origin);
     };
     let mut support = SupportCheck::new(config.transform, Some(resolution));
     let mut tally = Tally::new();
@@ -96,18 +79,14 @@ pub fn load_sample<R: Read>(
     // Recorded at a resolution, the sample is its table of distinct values: rows given one
     // by one and as (value, count) then give the same run bit for bit. (The tally keeps
     // −0.0 and 0.0 apart; this merges them as it merges rows.)
-    let (values, counts) = tabulate(&distinct, Some(&per_value));
-    let fitted = values
-        .iter()
-        .map(|&v| config.transform.fitted_value(v, Some(resolution)))
-        .collect();
-    Ok(Loaded {
-        values,
-        counts,
-        dropped: scan.dropped,
-        fitted,
+    Ok(tabulated(
+        &distinct,
+        Some(&per_value),
+        scan.dropped,
         recording,
-    })
+        config,
+        resolution,
+    ))
 }
 
 /// [`load_sample`] with every row held in memory first (values, their lines, their
@@ -142,16 +121,36 @@ pub fn load_sample_in_memory<R: Read>(
             recording,
         });
     };
-    let (values, counts) = tabulate(&sample.values, sample.counts.as_deref());
+    Ok(tabulated(
+        &sample.values,
+        sample.counts.as_deref(),
+        sample.dropped,
+        recording,
+        config,
+        resolution,
+    ))
+}
+
+/// The sample recorded at `resolution` as its table of distinct values (rows given one by
+/// one and as (value, count) then give the same run bit for bit), each fitted at its cell.
+fn tabulated(
+    values: &[f64],
+    counts: Option<&[u64]>,
+    dropped: usize,
+    recording: Recording,
+    config: &RunConfig,
+    resolution: f64,
+) -> Loaded {
+    let (values, counts) = tabulate(values, counts);
     let fitted = values
         .iter()
         .map(|&v| config.transform.fitted_value(v, Some(resolution)))
         .collect();
-    Ok(Loaded {
+    Loaded {
         values,
         counts,
-        dropped: sample.dropped,
+        dropped,
         fitted,
         recording,
-    })
+    }
 }

@@ -25,6 +25,7 @@ use rand::Rng;
 use statrs::function::gamma::ln_gamma;
 
 use super::cell_counts::CellCounts;
+use super::mh::accept;
 use crate::config::Kernel;
 use crate::data::Cells;
 use crate::dist::{
@@ -113,11 +114,6 @@ fn nig_posterior(prior: &Prior, b: f64, n: f64, s1: f64, s2: f64) -> (f64, f64, 
 /// ln NIG(μ, v; m, κ, a, b): v ~ IG(a, b), μ | v ~ N(m, v/κ).
 fn ln_nig(mu: f64, v: f64, (m, kappa, a, b): (f64, f64, f64, f64)) -> f64 {
     ln_inv_gamma(v, a, b) + ln_normal_pdf(mu, m, (v / kappa).sqrt())
-}
-
-/// MH acceptance with log ratio `log_r` (NaN rejects).
-fn accept<R: Rng + ?Sized>(log_r: f64, rng: &mut R) -> bool {
-    log_r >= 0.0 || (1.0 - rng.random::<f64>()).ln() < log_r
 }
 
 /// Updates every component's parameters given the counts (see the module comment), and

@@ -20,6 +20,8 @@
 //! the swapped labels. Move 2 stops at K − 2 because v_K = 1 is fixed by the truncation.
 
 use rand::Rng;
+
+use super::mh::accept;
 use statrs::function::gamma::ln_gamma;
 
 use super::allocate::SuffStats;
@@ -77,11 +79,6 @@ pub(crate) fn distinct_pair<R: Rng + ?Sized>(m: usize, rng: &mut R) -> (usize, u
         l += 1;
     }
     (i, l)
-}
-
-/// MH acceptance of a proposal with log ratio `log_r`: ln U < ln r, U uniform on (0, 1].
-fn accept<R: Rng + ?Sized>(log_r: f64, rng: &mut R) -> bool {
-    log_r >= 0.0 || (1.0 - rng.random::<f64>()).ln() < log_r
 }
 
 /// Runs both moves on the allocation statistics `stats` and the stick-breaking `state`:

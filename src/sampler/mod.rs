@@ -20,6 +20,7 @@ pub mod concentration;
 pub mod hyper;
 mod init;
 pub mod label_moves;
+mod mh;
 pub mod pair_coords;
 mod pair_target;
 pub mod relocate;

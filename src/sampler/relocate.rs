@@ -29,6 +29,7 @@ use rand::Rng;
 use statrs::function::gamma::ln_gamma;
 
 use super::label_moves::distinct_pair;
+use super::mh::accept;
 use super::pair_coords::{ln_shares, Component};
 use super::pair_target::{ln_lik_with, ln_weight_prior, store, Kern, PairData, Terms};
 use crate::config::Kernel;
@@ -254,10 +255,7 @@ fn one_move<R: Rng + ?Sized>(
         RelocateTarget::WithoutProposal => 0.0,
     };
     let log_r = t_new - t_now + correction;
-    if log_r.is_nan() || !t_new.is_finite() {
-        return false;
-    }
-    if log_r < 0.0 && (1.0 - rng.random::<f64>()).ln() >= log_r {
+    if log_r.is_nan() || !t_new.is_finite() || !accept(log_r, rng) {
         return false;
     }
     let (ls_e, ls_o) = ln_shares(proposed.t);

@@ -144,7 +144,7 @@ fn move_location_scale<R: Rng + ?Sized>(
         return false;
     };
     let b = state.var_scale;
-    let target = |t: [f64; 3], state: &State| -> f64 {
+    let target = |t: [f64; 3]| -> f64 {
         let (a, c, ln_j) = from_coords(tot, t);
         if !(a.var > 0.0 && c.var > 0.0 && a.var.is_finite() && c.var.is_finite()) {
             return f64::NEG_INFINITY;
@@ -156,7 +156,7 @@ fn move_location_scale<R: Rng + ?Sized>(
             + jac * ln_j
     };
     let start = t;
-    let t = slice_each(start, [LOGIT_WIDTH; 3], |u| target(u, state), rng);
+    let t = slice_each(start, [LOGIT_WIDTH; 3], target, rng);
     if t == start {
         return false;
     }
@@ -201,7 +201,7 @@ fn move_location<R: Rng + ?Sized>(
         (a, b, lu + l1mu)
     };
     let prec = 1.0 / (prior.centre_sd * prior.centre_sd);
-    let target = |c: [f64; 2], state: &State| -> f64 {
+    let target = |c: [f64; 2]| -> f64 {
         let (a, b, ln_j) = pair(c);
         let (da, db) = (a.mu - prior.centre, b.mu - prior.centre);
         ln_weight_prior(prior, state, j, k, a.log_w, b.log_w) - 0.5 * prec * (da * da + db * db)
@@ -209,7 +209,7 @@ fn move_location<R: Rng + ?Sized>(
             + jac * ln_j
     };
     let widths = [LOGIT_WIDTH, var.sqrt()];
-    let c = slice_each(start, widths, |e| target(e, state), rng);
+    let c = slice_each(start, widths, target, rng);
     if c == start {
         return false;
     }

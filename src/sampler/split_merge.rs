@@ -37,6 +37,7 @@ use super::allocate::fastln::{ln_fast_f64, ln_positive};
 use super::allocate::SuffStats;
 use super::collapsed::{log_marginal, log_predictive, predictive_terms, HalfSteps};
 use super::label_moves::{distinct_pair, log_label_prior};
+use super::mh::accept;
 use crate::config::WeightsKind;
 use crate::model::{Prior, State};
 
@@ -230,7 +231,7 @@ pub fn run<R: Rng + ?Sized>(
             - log_marginal(prior, state, sm)
             + e
             - log_q;
-        if log_ratio >= 0.0 || (1.0 - rng.random::<f64>()).ln() < log_ratio {
+        if accept(log_ratio, rng) {
             tally.splits_accepted += 1;
             z[j] = l as u32;
             for (&k, &gb) in members.iter().zip(&to_b) {
