@@ -41,7 +41,7 @@ fn config(chains: usize) -> String {
     format!(
         "[data]\nfile = \"data.csv\"\ncolumn = \"value\"\n\n\
          [model]\nkernel = \"location-scale\"\nweights = \"stick-breaking\"\ncomponents = 6\n\n\
-         [sampler]\nchains = {chains}\nwarmup = 100\ndraws = 200\nseed = 31337\n\n\
+         [sampler]\nchains = {chains}\nwarmup = 100\ndraws = 200\nmax_draws = 200\nseed = 31337\n\n\
          [grid]\npoints = 60\n\n[bands]\nlevels = [0.5, 0.9, 0.95]\n"
     )
 }

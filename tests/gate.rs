@@ -389,7 +389,12 @@ fn run_sample(cfg: &Path, out: &Path) -> std::process::Output {
 #[test]
 fn short_run_fails_the_gate_exit_3_with_outputs_marked() {
     let dir = tmp("short");
-    let cfg = write_config(&dir, "chains = 2\nwarmup = 2\ndraws = 30", "");
+    // max_draws = draws: the run must not grow to pass (tests/grow_run.rs).
+    let cfg = write_config(
+        &dir,
+        "chains = 2\nwarmup = 2\ndraws = 30\nmax_draws = 30",
+        "",
+    );
     let out = dir.join("run");
     let o = run_sample(&cfg, &out);
     let stdout = String::from_utf8_lossy(&o.stdout);

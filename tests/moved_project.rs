@@ -12,7 +12,7 @@ use robust_support::{assert_input_error, assert_ok, assert_same_results, mixture
 
 const CONFIG: &str =
     "[data]\nfile = \"data.csv\"\ncolumn = \"value\"\n\n[model]\ncomponents = 4\n\n\
-[sampler]\nchains = 2\nwarmup = 20\ndraws = 30\nseed = 31\n";
+[sampler]\nchains = 2\nwarmup = 20\ndraws = 30\nmax_draws = 30\nseed = 31\n";
 
 const QUIET: [&str; 4] = ["--quiet", "--no-report", "--threads", "2"];
 

@@ -12,7 +12,7 @@ use robust_support::{
 fn config(draws: usize) -> String {
     format!(
         "[data]\nfile = \"d.csv\"\ncolumn = \"value\"\n\n[model]\nkernel = \"location\"\nweights = \"stick-breaking\"\n\
-         components = 8\n\n[sampler]\nchains = 3\nwarmup = 50\ndraws = {draws}\nthin = 2\nseed = 99\n"
+         components = 8\n\n[sampler]\nchains = 3\nwarmup = 50\ndraws = {draws}\nmax_draws = {draws}\nthin = 2\nseed = 99\n"
     )
 }
 

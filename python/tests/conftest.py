@@ -36,8 +36,9 @@ def sample_values():
     return np.round(x, 3)
 
 
-# A short run: these tests compare outputs, they do not need converged chains.
-SHORT = {"warmup": 150, "draws": 200, "chains": 2}
+# A short run: these tests compare outputs, they do not need converged chains, and it
+# must not grow to pass the gate (max_draws = draws; docs/outputs.md).
+SHORT = {"warmup": 150, "draws": 200, "max_draws": 200, "chains": 2}
 
 
 @pytest.fixture
@@ -48,7 +49,7 @@ def project(tmp_path, sample_values):
     cfg = tmp_path / "run.toml"
     cfg.write_text(
         '[data]\nfile = "values.csv"\ncolumn = "value"\n\n'
-        "[sampler]\nseed = 11\nwarmup = 150\ndraws = 200\nchains = 2\n"
+        "[sampler]\nseed = 11\nwarmup = 150\ndraws = 200\nmax_draws = 200\nchains = 2\n"
     )
     return tmp_path
 

@@ -118,7 +118,7 @@ def test_temporary_run_directory_lives_with_the_result(sample_values):
 def test_interrupt_leaves_a_resumable_run(sample_values, tmp_path):
     """Ctrl-C (SIGINT) during sampling raises KeyboardInterrupt; the run resumes to the
     same draws as an uninterrupted run (chain streams depend only on seed and chain)."""
-    long = dict(SHORT, warmup=500, draws=3000)
+    long = dict(SHORT, warmup=500, draws=3000, max_draws=3000)
     out = tmp_path / "stopped"
     timer = threading.Timer(0.5, signal.raise_signal, args=(signal.SIGINT,))
     timer.start()

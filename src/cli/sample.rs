@@ -90,6 +90,10 @@ pub(super) fn finish(
 /// The end of `sample`, `demo`, `resume`, `extend` and `merge`: the model check's verdict,
 /// where the report is, the gate's verdict; returns the exit code.
 pub(super) fn print_result(result: &RunResult) -> i32 {
+    let m = &result.manifest;
+    if let Some(line) = crate::run::grow::describe(&m.grown, m.not_grown.as_deref()) {
+        eprintln!("mixband: the run was {line}");
+    }
     if let Some(r) = &result.check {
         println!("mixband: model check: {}", r.verdict.summary);
     }

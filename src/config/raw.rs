@@ -135,6 +135,10 @@ pub struct SamplerSection {
     pub chains: Option<i64>,
     pub warmup: Option<i64>,
     pub draws: Option<i64>,
+    /// The most kept draws per chain the run may grow to when the gate fails and more
+    /// draws are projected to pass it (docs/outputs.md, "Growing a run to pass the gate").
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub max_draws: Option<i64>,
     pub thin: Option<i64>,
     pub seed: Option<i64>,
     /// Run only these chains (ids from 1 to `chains`), with the streams they have in the

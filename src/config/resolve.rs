@@ -71,6 +71,9 @@ pub struct RunConfig {
     pub chain_ids: Option<Vec<u64>>,
     pub warmup: usize,
     pub draws: usize,
+    /// `[sampler] max_draws`: the run may grow to this many kept draws per chain when the
+    /// gate fails (equal to `draws`: never).
+    pub max_draws: usize,
     pub thin: usize,
     pub seed: u64,
     pub label_moves: bool,
@@ -297,6 +300,35 @@ pub fn resolve(
             ),
         ));
     }
+    // Four times the draws by default, and never past the sweep limit (a default must not
+    // turn a valid config into an error).
+    let max_default =
+        (4 * draws).min(((MAX_SWEEPS as usize).saturating_sub(warmup) / thin).max(draws));
+    let max_draws = ck.int_in(
+        "sampler",
+        "max_draws",
+        s.max_draws,
+        1,
+        MAX_SWEEPS,
+        max_default as i64,
+    )?;
+    if max_draws < draws {
+        return Err(ck.fail(
+            "sampler",
+            "max_draws",
+            format!("must be at least draws ({draws}), got {max_draws}"),
+        ));
+    }
+    if (warmup + max_draws * thin) as i64 > MAX_SWEEPS {
+        return Err(ck.fail(
+            "sampler",
+            "max_draws",
+            format!(
+                "asks for up to warmup + max_draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}",
+                warmup + max_draws * thin
+            ),
+        ));
+    }
     let chain_ids = match &s.chain_ids {
         None => None,
         Some(ids) => {
@@ -482,6 +514,7 @@ pub fn resolve(
         chain_ids,
         warmup,
         draws,
+        max_draws,
         thin,
         seed,
         label_moves: s.label_moves.unwrap_or(true),
@@ -603,6 +636,7 @@ impl RunConfig {
                 chains: Some(self.chains as i64),
                 warmup: Some(self.warmup as i64),
                 draws: Some(self.draws as i64),
+                max_draws: Some(self.max_draws as i64),
                 thin: Some(self.thin as i64),
                 seed: Some(self.seed as i64),
                 chain_ids: self

@@ -46,6 +46,7 @@ components = 10               # K; default 10 for dirichlet, 25 for stick-breaki
 chains = 4
 warmup = 1000                 # sweeps discarded per chain (defaults: docs/model.md, "Defaults")
 draws = 3000                  # kept draws per chain
+# max_draws = 12000           # when the gate fails, grow the run up to this many (default 4 x draws)
 thin = 1                      # keep every thin-th sweep after warm-up
 # seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
 label_moves = true            # label-switching moves for stick-breaking weights (docs/model.md)

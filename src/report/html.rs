@@ -142,7 +142,7 @@ fn metadata(out: &mut String, inp: &RunInputs) {
     let secs: Vec<f64> = m.chains.iter().map(|ch| ch.seconds).collect();
     let total: f64 = secs.iter().sum();
     let longest = secs.iter().copied().fold(0.0, f64::max);
-    let rows: Vec<(&str, String)> = vec![
+    let mut rows: Vec<(&str, String)> = vec![
         ("tool", format!("{} {}", m.tool, m.version)),
         ("run directory", inp.layout.root.display().to_string()),
         ("status", format!("{:?}", m.status).to_lowercase()),
@@ -212,6 +212,13 @@ fn metadata(out: &mut String, inp: &RunInputs) {
             ),
         ),
     ];
+    if let Some(line) = crate::run::grow::describe(&m.grown, m.not_grown.as_deref()) {
+        let at = rows
+            .iter()
+            .position(|(k, _)| *k == "sampling")
+            .map_or(rows.len(), |i| i + 1);
+        rows.insert(at, ("growth", line));
+    }
     out.push_str("<dl class=\"meta\">");
     for (k, v) in rows {
         let _ = write!(

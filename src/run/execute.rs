@@ -146,6 +146,20 @@ pub fn execute(
     opts: ExecOptions<'_>,
     extra_files: &[(&str, &[u8])],
 ) -> Result<RunOutcome> {
+    execute_holding(prep, dir, mode, opts, extra_files, None)
+}
+
+/// [`execute`]; a resume given `held`, the run's lock taken by an earlier call of this
+/// process, keeps it instead of acquiring it again (growing a run that failed the gate
+/// never lets go of the directory between its rounds).
+pub(crate) fn execute_holding(
+    prep: &Prepared,
+    dir: &Path,
+    mode: Mode,
+    opts: ExecOptions<'_>,
+    extra_files: &[(&str, &[u8])],
+    held: Option<Arc<RunLock>>,
+) -> Result<RunOutcome> {
     let cfg = &prep.config;
     let layout = RunLayout::new(dir);
     if opts.stop.load(Ordering::SeqCst) {
@@ -163,7 +177,7 @@ pub fn execute(
     let lock;
     let mut manifest = match mode {
         Mode::Fresh { force } => {
-            lock = claim_directory(dir, force)?;
+            lock = Arc::new(claim_directory(dir, force)?);
             for (name, bytes) in extra_files {
                 write_atomic(&layout.root.join(name), bytes)?;
             }
@@ -189,10 +203,15 @@ pub fn execute(
                     .duration_since(std::time::UNIX_EPOCH)
                     .map(|d| d.as_secs())
                     .unwrap_or(0),
+                grown: Vec::new(),
+                not_grown: None,
             }
         }
         Mode::Resume => {
-            lock = RunLock::acquire(dir, "continue")?;
+            lock = match held {
+                Some(l) => l,
+                None => Arc::new(RunLock::acquire(dir, "continue")?),
+            };
             let mut m = Manifest::read(&layout.manifest())?;
             if m.data.sha256 != prep.record.sha256 {
                 return Err(Error::input(format!(
@@ -323,7 +342,7 @@ pub fn execute(
     Ok(RunOutcome {
         manifest,
         interrupted,
-        lock: Arc::new(lock),
+        lock,
     })
 }
 

@@ -7,7 +7,8 @@
 
 use std::path::{Path, PathBuf};
 
-use super::execute::{execute, ExecOptions, Mode};
+use super::execute::{execute, execute_holding, ExecOptions, Mode, RunOutcome};
+use super::grow;
 use super::outputs::{summary_file, write_bands, write_summaries, SummaryFile};
 use super::prepare::Prepared;
 use super::summarise::{summarise_stored, Summaries, SummaryPlan};
@@ -74,33 +75,96 @@ pub fn run_job(
     opts: JobOptions<'_>,
     extra_files: &[(&str, &[u8])],
 ) -> Result<RunResult> {
+    run_job_growing(prep, out, mode, opts, extra_files, true)
+}
+
+/// [`run_job`]; `grow` allows growing a run that fails the gate ([`super::grow`]): a
+/// fresh run and a resume to the configured length may grow, an explicit extension does
+/// not (it asked for a number of draws), nor does a run of some of the chains (a part
+/// cannot judge the gate alone).
+fn run_job_growing(
+    prep: &Prepared,
+    out: &Path,
+    mode: Mode,
+    opts: JobOptions<'_>,
+    extra_files: &[(&str, &[u8])],
+    grow: bool,
+) -> Result<RunResult> {
     if opts.exec.threads == 0 {
         return Err(Error::input("--threads must be at least 1"));
     }
     // `outcome.lock` keeps the run directory locked until this function returns, after
     // the summaries and the report are written.
-    let outcome = execute(prep, out, mode, opts.exec, extra_files)?;
-    if outcome.interrupted {
-        let left = outcome
-            .manifest
-            .chains
-            .iter()
-            .filter(|ch| ch.sweeps_done < ch.sweeps_planned)
-            .count();
-        return Err(Error::Interrupted(format!(
-            "{left} chain(s) stopped early; draws so far are in {}; continue with `mixband resume {}`",
-            out.display(),
-            out.display()
-        )));
-    }
+    let mut outcome = execute(prep, out, mode, opts.exec, extra_files)?;
+    refuse_interrupted(&outcome, out)?;
     let layout = RunLayout::new(out);
-    let mut result = summarise_run(&layout, prep)?;
+    let mut s = assess_and_summarise(&layout, prep)?;
+    let c = &prep.config;
+    if grow && c.chain_ids.is_none() && c.max_draws > c.draws {
+        let mut grown_prep: Option<Prepared> = None;
+        for _ in 0..grow::MAX_ROUNDS {
+            let report = s.report.as_ref().ok_or_else(not_assessed)?;
+            if report.passed {
+                break;
+            }
+            let draws = grown_prep.as_ref().map_or(c.draws, |p| p.config.draws);
+            let mut manifest = Manifest::read(&layout.manifest())?;
+            let decision = grow::decide(report, draws, c.max_draws);
+            manifest.not_grown = match &decision {
+                grow::Decision::Stop(why) => Some(why.clone()),
+                grow::Decision::Grow(_) => None,
+            };
+            let grow::Decision::Grow(g) = decision else {
+                manifest.write(&layout.manifest())?;
+                outcome.manifest = manifest;
+                break;
+            };
+            let to = g.to_draws;
+            manifest.grown.push(g);
+            manifest.write(&layout.manifest())?;
+            let p = grown_prep.get_or_insert_with(|| prep.clone());
+            p.config.draws = to;
+            outcome = execute_holding(
+                p,
+                out,
+                Mode::Resume,
+                opts.exec,
+                &[],
+                Some(outcome.lock.clone()),
+            )?;
+            refuse_interrupted(&outcome, out)?;
+            s = assess_and_summarise(&layout, p)?;
+        }
+    }
+    let mut result = write_results(&layout, prep, s)?;
     result.manifest = outcome.manifest;
     if opts.report {
         let page = crate::report::write_report(out, crate::plot::DensityOptions::default())?;
         result.report_html = Some(page);
     }
     Ok(result)
+}
+
+fn not_assessed() -> Error {
+    Error::internal("the gate was not assessed")
+}
+
+/// An interrupted sampling call as the error that says how to continue.
+fn refuse_interrupted(outcome: &RunOutcome, out: &Path) -> Result<()> {
+    if !outcome.interrupted {
+        return Ok(());
+    }
+    let left = outcome
+        .manifest
+        .chains
+        .iter()
+        .filter(|ch| ch.sweeps_done < ch.sweeps_planned)
+        .count();
+    Err(Error::Interrupted(format!(
+        "{left} chain(s) stopped early; draws so far are in {}; continue with `mixband resume {}`",
+        out.display(),
+        out.display()
+    )))
 }
 
 /// Continues the run in `run`: to its configured length (`extra_draws` None), or by
@@ -126,6 +190,11 @@ pub fn continue_run(
         // [check] changes no draw (and runs from before it have none).
         if let Some(o) = v.as_object_mut() {
             o.remove("check");
+        }
+        // Nor does max_draws change a draw already taken (and runs from before it have
+        // none): it only bounds how far a failing run may grow.
+        if let Some(s) = v.get_mut("sampler").and_then(|s| s.as_object_mut()) {
+            s.remove("max_draws");
         }
         v
     };
@@ -154,11 +223,15 @@ pub fn continue_run(
                 .checked_add(n)
                 .filter(|&d| d <= 1_000_000_000)
                 .ok_or_else(|| Error::input(format!("--draws {n} makes the run too long")))?;
+            // An extension past max_draws moves the limit with it, so that the run's
+            // config.toml stays valid (max_draws at least draws).
+            prep.config.max_draws = prep.config.max_draws.max(prep.config.draws);
         }
         None if manifest.status == RunStatus::Complete => return Ok(Continued::AlreadyComplete),
         None => {}
     }
-    run_job(&prep, run, Mode::Resume, opts, &[]).map(|r| Continued::Done(Box::new(r)))
+    let grow = extra_draws.is_none();
+    run_job_growing(&prep, run, Mode::Resume, opts, &[], grow).map(|r| Continued::Done(Box::new(r)))
 }
 
 /// The manifest and prepared config of an existing run directory.
@@ -194,14 +267,27 @@ fn open_unchanged(layout: &RunLayout, when: &str) -> Result<(Manifest, Prepared)
 /// against the data, and writes diagnostics.json, checks.json, bands.csv / bands.json,
 /// cdf.csv and summary.json (flagged with the verdict) on the configured grid.
 pub fn summarise_run(layout: &RunLayout, prep: &Prepared) -> Result<RunResult> {
+    let s = assess_and_summarise(layout, prep)?;
+    write_results(layout, prep, s)
+}
+
+/// The gate's assessment and the summaries of the stored draws, nothing written.
+fn assess_and_summarise(layout: &RunLayout, prep: &Prepared) -> Result<Summaries> {
     let c = &prep.config;
     let manifest = Manifest::read(&layout.manifest())?;
     let grid = linspace(c.grid_from, c.grid_to, c.grid_points);
     let spec = GateSpec::from_config(c, manifest.status == RunStatus::Complete);
-    let s = summaries(layout, &manifest, &grid, &c.levels, c, Some(spec))?;
-    let diagnostics = s
-        .report
-        .ok_or_else(|| Error::internal("the gate was not assessed"))?;
+    summaries(layout, &manifest, &grid, &c.levels, c, Some(spec))
+}
+
+/// Writes what [`assess_and_summarise`] found, with the model check, and the growths of
+/// the run (the manifest's) among the gate's notes.
+fn write_results(layout: &RunLayout, prep: &Prepared, s: Summaries) -> Result<RunResult> {
+    let manifest = Manifest::read(&layout.manifest())?;
+    let mut diagnostics = s.report.ok_or_else(not_assessed)?;
+    if let Some(line) = grow::describe(&manifest.grown, manifest.not_grown.as_deref()) {
+        diagnostics.notes.push(format!("the run was {line}"));
+    }
     diagnostics.write(layout)?;
     let check = check_and_write(layout, prep);
     let (bands, cdf, summary) =

@@ -206,6 +206,9 @@ pub fn merge_runs(runs: &[PathBuf], out: &Path) -> Result<(Manifest, RawConfig, 
             .map_err(|e| Error::internal(format!("cannot encode config: {e}")))?,
         chains: records,
         started_unix: parts.iter().map(|p| p.2.started_unix).min().unwrap_or(0),
+        // Parts never grow (a part cannot judge the gate alone).
+        grown: Vec::new(),
+        not_grown: None,
     };
     manifest.write(&layout.manifest())?;
     Ok((manifest, raw, lock))

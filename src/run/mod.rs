@@ -6,6 +6,7 @@
 mod data_path;
 mod demo;
 mod execute;
+pub mod grow;
 mod in_memory;
 mod job;
 mod loaded;

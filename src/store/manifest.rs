@@ -57,6 +57,25 @@ pub struct Manifest {
     pub chains: Vec<ChainRecord>,
     /// Seconds since the Unix epoch when the run was started.
     pub started_unix: u64,
+    /// The times the run was grown after failing the gate (`[sampler] max_draws`), in
+    /// order; absent when it never was.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub grown: Vec<Growth>,
+    /// Why a run that failed the gate was not grown (further), when that was considered.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub not_grown: Option<String>,
+}
+
+/// One growth of a run that failed the gate: from how many kept draws per chain to how
+/// many, and the gate's worst figures that asked for it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Growth {
+    pub from_draws: usize,
+    pub to_draws: usize,
+    /// The lowest gated bulk or tail ESS at `from_draws`.
+    pub lowest_ess: f64,
+    /// The largest gated R-hat at `from_draws`.
+    pub largest_rhat: f64,
 }
 
 impl Manifest {

@@ -27,6 +27,6 @@ pub use draws::{
 };
 pub use layout::RunLayout;
 pub use lock::{host_name, utc_text, LockHolder, RunLock, LOCK_FILE};
-pub use manifest::{ChainRecord, DataRecord, Manifest, RunStatus};
+pub use manifest::{ChainRecord, DataRecord, Growth, Manifest, RunStatus};
 pub use scalars::{ChainScalars, ScalarDraws};
 pub use stream::{Columns, RowReader, StoredChains};
