@@ -37,6 +37,16 @@ fn read(s: &Scratch, rel: &str) -> Vec<u8> {
     std::fs::read(s.path(rel)).unwrap()
 }
 
+/// The run in `s` was neither grown nor judged for growth, and kept its `draws`.
+fn assert_never_considered(s: &Scratch, draws: u64) {
+    let m = manifest(&s.path("run"));
+    assert!(
+        m.get("grown").is_none() && m.get("not_grown").is_none(),
+        "{m}"
+    );
+    assert_eq!(m["config"]["sampler"]["draws"], draws);
+}
+
 #[test]
 fn a_grown_run_equals_a_run_of_its_final_length() {
     // 4 chains × 100 draws of the location-scale defaults on 500 values fall short of the
@@ -80,12 +90,7 @@ fn max_draws_equal_to_draws_turns_growth_off() {
     let s = setup("grow_off", &config(100, "max_draws = 100\n"));
     let out = sample(&s);
     assert_eq!(out.status.code(), Some(3), "{}", stderr(&out));
-    let m = manifest(&s.path("run"));
-    assert!(
-        m.get("grown").is_none() && m.get("not_grown").is_none(),
-        "{m}"
-    );
-    assert_eq!(m["config"]["sampler"]["draws"], 100);
+    assert_never_considered(&s, 100);
 }
 
 #[test]
@@ -117,12 +122,7 @@ fn a_run_of_some_chains_never_grows() {
     ]);
     let code = out.status.code();
     assert!(code == Some(0) || code == Some(3), "{}", stderr(&out));
-    let m = manifest(&s.path("run"));
-    assert!(
-        m.get("grown").is_none() && m.get("not_grown").is_none(),
-        "{m}"
-    );
-    assert_eq!(m["config"]["sampler"]["draws"], 100);
+    assert_never_considered(&s, 100);
 }
 
 #[test]

@@ -43,6 +43,9 @@ pub const COLLAPSED_MAX_N: usize = 20_000;
 const MAX_CHAINS: i64 = 1000;
 const MAX_COMPONENTS: i64 = 10_000;
 const MAX_SWEEPS: i64 = 1_000_000_000;
+/// The least default of `[sampler] max_draws`: what a run of the default length may grow
+/// to (docs/model.md, "Run length").
+const DEFAULT_MAX_DRAWS: usize = 12_000;
 const MAX_THIN: i64 = 1_000_000;
 const MAX_POINTS: i64 = 1_000_000;
 
@@ -272,7 +275,7 @@ pub fn resolve(
     let s = raw.sampler.clone().unwrap_or_default();
     let chains = ck.int_in("sampler", "chains", s.chains, 1, MAX_CHAINS, 4)?;
     let warmup = ck.int_in("sampler", "warmup", s.warmup, 0, MAX_SWEEPS, 1000)?;
-    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 3000)?;
+    let draws = ck.int_in("sampler", "draws", s.draws, 1, MAX_SWEEPS, 1000)?;
     let resplit_moves = ck.int_in(
         "sampler",
         "resplit_moves",
@@ -290,20 +293,26 @@ pub fn resolve(
         0,
     )?;
     let thin = ck.int_in("sampler", "thin", s.thin, 1, MAX_THIN, 1)?;
-    if (warmup + draws * thin) as i64 > MAX_SWEEPS {
-        return Err(ck.fail(
-            "sampler",
-            "draws",
-            format!(
-                "asks for warmup + draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}",
-                warmup + draws * thin
-            ),
-        ));
-    }
-    // Four times the draws by default, and never past the sweep limit (a default must not
-    // turn a valid config into an error).
-    let max_default =
-        (4 * draws).min(((MAX_SWEEPS as usize).saturating_sub(warmup) / thin).max(draws));
+    // The sweeps per chain `key` asks for, at most MAX_SWEEPS.
+    let sweeps_within = |key: &str, kept: usize| {
+        let sweeps = warmup + kept * thin;
+        if sweeps as i64 > MAX_SWEEPS {
+            return Err(ck.fail(
+                "sampler",
+                key,
+                format!(
+                    "asks for warmup + {key} x thin = {sweeps} sweeps per chain, more than {MAX_SWEEPS}"
+                ),
+            ));
+        }
+        Ok(())
+    };
+    sweeps_within("draws", draws)?;
+    // By default 12 000 or four times the draws, whichever is more, and never past the
+    // sweep limit (a default must not turn a valid config into an error).
+    let max_default = (4 * draws)
+        .max(DEFAULT_MAX_DRAWS)
+        .min(((MAX_SWEEPS as usize).saturating_sub(warmup) / thin).max(draws));
     let max_draws = ck.int_in(
         "sampler",
         "max_draws",
@@ -319,16 +328,7 @@ pub fn resolve(
             format!("must be at least draws ({draws}), got {max_draws}"),
         ));
     }
-    if (warmup + max_draws * thin) as i64 > MAX_SWEEPS {
-        return Err(ck.fail(
-            "sampler",
-            "max_draws",
-            format!(
-                "asks for up to warmup + max_draws x thin = {} sweeps per chain, more than {MAX_SWEEPS}",
-                warmup + max_draws * thin
-            ),
-        ));
-    }
+    sweeps_within("max_draws", max_draws)?;
     let chain_ids = match &s.chain_ids {
         None => None,
         Some(ids) => {

@@ -45,8 +45,8 @@ components = 10               # K; default 10 for dirichlet, 25 for stick-breaki
 [sampler]
 chains = 4
 warmup = 1000                 # sweeps discarded per chain (defaults: docs/model.md, "Defaults")
-draws = 3000                  # kept draws per chain
-# max_draws = 12000           # when the gate fails, grow the run up to this many (default 4 x draws)
+draws = 1000                  # kept draws per chain
+# max_draws = 12000           # a run that fails the gate may grow to this many (default: 12000 or 4 x draws)
 thin = 1                      # keep every thin-th sweep after warm-up
 # seed = 12345                # without a seed one is chosen and recorded in RUN/config.toml
 label_moves = true            # label-switching moves for stick-breaking weights (docs/model.md)

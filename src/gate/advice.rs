@@ -1,6 +1,7 @@
 //! What to try when the gate fails, chosen from the kinds of failure.
 
 use super::failure::{Failure, FailureKind};
+use super::projection::{ess_factor, projected_draws};
 
 /// Facts the advice needs besides the failures.
 #[derive(Debug, Clone, Copy)]
@@ -14,15 +15,14 @@ pub(super) struct AdviceContext {
 /// Beyond this many times the run's length, an extension is called impractical.
 const IMPRACTICAL: usize = 10;
 
-/// Extra draws per chain that should lift `lowest` ESS to `min_ess`, assuming ESS grows in
-/// proportion to the draws (common practice, no source), with a 20% margin, rounded up to 100.
+/// Extra draws per chain that should lift `lowest` ESS to `min_ess` (see
+/// [`super::projection`]), at least 100.
 fn extra_draws(draws: usize, lowest: f64, min_ess: f64) -> Option<usize> {
     if draws == 0 || lowest <= 0.0 || !lowest.is_finite() {
         return None;
     }
-    let need = (draws as f64 * 1.2 * min_ess / lowest - draws as f64).max(0.0);
-    let rounded = ((need / 100.0).ceil() * 100.0).clamp(100.0, 1e9);
-    Some(rounded as usize)
+    let to = projected_draws(draws, ess_factor(lowest, min_ess));
+    Some(to.saturating_sub(draws).max(100))
 }
 
 /// One piece of advice per kind of failure, in a fixed order.

@@ -10,6 +10,7 @@ mod assess;
 mod density;
 mod failure;
 mod format;
+pub mod projection;
 mod quantity;
 mod report;
 mod series;
