@@ -22,15 +22,7 @@ fn setup(name: &str, text: &str) -> Scratch {
 }
 
 fn sample(s: &Scratch) -> std::process::Output {
-    s.run(&[
-        "sample",
-        "c.toml",
-        "--out",
-        "run",
-        "--quiet",
-        "--threads",
-        "2",
-    ])
+    s.sample("run", "2")
 }
 
 fn read(s: &Scratch, rel: &str) -> Vec<u8> {

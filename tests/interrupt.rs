@@ -34,35 +34,19 @@ fn reference() -> &'static Path {
     static REF: OnceLock<PathBuf> = OnceLock::new();
     REF.get_or_init(|| {
         let s = setup("interrupt_reference");
-        let out = s.run(&[
-            "sample",
-            "c.toml",
-            "--out",
-            "run",
-            "--quiet",
-            "--threads",
-            "2",
-        ]);
+        let out = s.sample("run", "2");
         assert_ok(&out);
         s.path("run")
     })
 }
 
 fn start(s: &Scratch) -> Child {
-    s.command(&[
-        "sample",
-        "c.toml",
-        "--out",
-        "run",
-        "--quiet",
-        "--threads",
-        "2",
-    ])
-    .env("MIXBAND_CHECKPOINT_SECS", CHECKPOINT_SECS)
-    .stdout(std::process::Stdio::piped())
-    .stderr(std::process::Stdio::piped())
-    .spawn()
-    .unwrap()
+    s.command(&Scratch::sample_args("run", "2"))
+        .env("MIXBAND_CHECKPOINT_SECS", CHECKPOINT_SECS)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap()
 }
 
 /// Waits until every chain has stored a checkpoint with at least one draw.

@@ -24,15 +24,7 @@ fn setup(name: &str, draws: usize) -> Scratch {
 }
 
 fn sample(s: &Scratch, out: &str, threads: &str) {
-    assert_ok(&s.run(&[
-        "sample",
-        "c.toml",
-        "--out",
-        out,
-        "--quiet",
-        "--threads",
-        threads,
-    ]));
+    assert_ok(&s.sample(out, threads));
 }
 
 #[test]

@@ -46,6 +46,24 @@ impl Scratch {
     pub fn run(&self, args: &[&str]) -> Output {
         self.command(args).output().unwrap()
     }
+
+    /// The arguments of `mixband sample c.toml --out OUT --quiet --threads T`.
+    pub fn sample_args<'a>(out: &'a str, threads: &'a str) -> [&'a str; 7] {
+        [
+            "sample",
+            "c.toml",
+            "--out",
+            out,
+            "--quiet",
+            "--threads",
+            threads,
+        ]
+    }
+
+    /// Runs `mixband sample c.toml` into `out` with `threads` threads.
+    pub fn sample(&self, out: &str, threads: &str) -> Output {
+        self.run(&Self::sample_args(out, threads))
+    }
 }
 
 pub fn stderr(out: &Output) -> String {
