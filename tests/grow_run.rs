@@ -104,6 +104,12 @@ fn a_projection_beyond_max_draws_is_declined_with_its_reason() {
         stderr(&out)
     );
     assert_eq!(m["config"]["sampler"]["draws"], 100);
+    // More draws by hand make the reason stale: it is dropped, the growth history kept.
+    let more = s.run(&["extend", "run", "--draws", "100", "--quiet"]);
+    assert_eq!(more.status.code(), Some(3), "{}", stderr(&more));
+    let m = manifest(&s.path("run"));
+    assert!(m.get("not_grown").is_none(), "{m}");
+    assert_eq!(m["config"]["sampler"]["draws"], 200);
 }
 
 #[test]

@@ -98,6 +98,11 @@ fn run_job_growing(
     let mut outcome = execute(prep, out, mode, opts.exec, extra_files)?;
     refuse_interrupted(&outcome, out)?;
     let layout = RunLayout::new(out);
+    if outcome.manifest.not_grown.is_some() {
+        // Why an earlier call did not grow the run is stale once it has more draws.
+        outcome.manifest.not_grown = None;
+        outcome.manifest.write(&layout.manifest())?;
+    }
     let mut s = assess_and_summarise(&layout, prep)?;
     let c = &prep.config;
     if grow && c.chain_ids.is_none() && c.max_draws > c.draws {
