@@ -45,11 +45,16 @@ pub(super) fn sample(
 pub(super) fn announce(prep: &Prepared) {
     let c = &prep.config;
     eprintln!(
-        "mixband: {} chains x {} draws (warm-up {}, thin {}) of a {} mixture, K = {}, {} weights, on {} observations of \"{}\"{}",
+        "mixband: {} chains x {} draws (warm-up {}, thin {}{}) of a {} mixture, K = {}, {} weights, on {} observations of \"{}\"{}",
         c.chain_id_list().len(),
         c.draws,
         c.warmup,
         c.thin,
+        if c.max_draws > c.draws && c.chain_ids.is_none() {
+            format!("; up to {} if the gate fails", c.max_draws)
+        } else {
+            String::new()
+        },
         c.kernel,
         c.components,
         c.weights,
