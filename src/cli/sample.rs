@@ -66,6 +66,13 @@ pub(super) fn announce(prep: &Prepared) {
             String::new()
         }
     );
+    if let Some(of) = prep.record.subsample_of {
+        eprintln!(
+            "mixband: note: fitting a random subsample of {} of the {of} observations ([data] subsample); \
+             the bands describe what the subsample shows, wider than the whole sample's would be",
+            prep.record.n
+        );
+    }
     print_notes(prep.record.recording.as_ref());
 }
 

@@ -87,6 +87,10 @@ pub struct DataSection {
     /// [x − r/2, x + r/2) (interval-censored likelihood, see src/sampler/censored.rs).
     #[serde(skip_serializing_if = "Option::is_none")]
     pub resolution: Option<f64>,
+    /// Fit at most this many observations, a simple random subsample drawn from the
+    /// run's seed (src/data/subsample.rs).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub subsample: Option<i64>,
 }
 
 #[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]

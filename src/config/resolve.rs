@@ -65,6 +65,8 @@ pub struct RunConfig {
     pub freq_weights: Option<String>,
     /// `[data] resolution`: each value stands for [x − r/2, x + r/2), in data units.
     pub resolution: Option<f64>,
+    /// `[data] subsample`: fit at most this many observations, drawn at random.
+    pub subsample: Option<u64>,
     pub kernel: Kernel,
     pub weights: WeightsKind,
     pub components: usize,
@@ -252,6 +254,17 @@ pub fn resolve(
             ))
         }
         r => r,
+    };
+    let subsample = match data.subsample {
+        None => None,
+        Some(m) if m < 2 => {
+            return Err(ck.fail(
+                "data",
+                "subsample",
+                format!("must be at least 2 observations, got {m}"),
+            ))
+        }
+        Some(m) => Some(m as u64),
     };
     let transform = resolve_transform(&data, &ck)?;
     let data_file = if Path::new(&file).is_absolute() {
@@ -506,6 +519,7 @@ pub fn resolve(
         transform,
         freq_weights,
         resolution,
+        subsample,
         kernel,
         weights,
         components,
@@ -608,6 +622,7 @@ impl RunConfig {
                 upper: self.transform.bounds().map(|b| b.upper()),
                 weights: self.freq_weights.clone(),
                 resolution: self.resolution,
+                subsample: self.subsample.map(|m| m as i64),
             }),
             model: Some(ModelSection {
                 kernel: Some(self.kernel),

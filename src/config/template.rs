@@ -16,6 +16,7 @@ transform = "none"            # "none", "log" for positive data: fit ln x, repor
 # upper = 1.0                 # values on a bound are accepted only with a resolution (censored there)
 # weights = "count"           # column of integer frequency weights (binned/tabulated data; 0 drops a row)
 # resolution = 0.1            # values were recorded to this step: each x stands for [x - r/2, x + r/2)
+# subsample = 10000           # fit at most this many observations, a random subsample (docs/outputs.md)
                               # (`sample` notes on stderr a lattice the values lie on, and heaping)
 
 [model]

@@ -7,6 +7,7 @@ mod digest;
 mod lattice;
 mod load;
 mod standardise;
+pub mod subsample;
 mod tally;
 mod transform;
 

@@ -150,14 +150,20 @@ fn metadata(out: &mut String, inp: &RunInputs) {
         ("data file", m.data.file.clone()),
         ("data SHA-256", m.data.sha256.clone()),
         ("column", m.data.column.clone()),
-        (
-            "observations",
+        ("observations", {
+            let mut t = format!("n = {}", m.data.n);
+            if let Some(of) = m.data.subsample_of {
+                t += &format!(
+                    ", a random subsample of the {of} observations in the data ([data] \
+                         subsample): the bands are for what the subsample shows, wider than the \
+                         whole sample's would be"
+                );
+            }
             if m.data.dropped > 0 {
-                format!("n = {} ({} empty cells dropped)", m.data.n, m.data.dropped)
-            } else {
-                format!("n = {}", m.data.n)
-            },
-        ),
+                t += &format!(" ({} empty cells dropped)", m.data.dropped);
+            }
+            t
+        }),
         (
             "recording",
             super::recording::treatment(inp.prep.record.recording.as_ref(), c.resolution),

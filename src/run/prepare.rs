@@ -8,9 +8,11 @@ use sha2::{Digest, Sha256};
 
 use super::loaded::{load_sample, load_sample_in_memory, Loaded};
 use crate::config::{parse_config_str, resolve, RunConfig};
+use crate::data::subsample::{choose, SUBSAMPLE_PURPOSE};
 use crate::data::{Cells, DataSummary, HashingReader, Standardised, Transform};
 use crate::error::{Error, Result};
 use crate::model::{Concentration, Prior, VarScale};
+use crate::sampler::rng::check_rng;
 use crate::store::DataRecord;
 
 /// Everything a run needs before sampling starts.
@@ -133,6 +135,10 @@ impl Prepared {
             fitted,
             recording,
         } = sample;
+        let (values, counts, fitted, subsample_of) = match pre.subsample {
+            None => (values, counts, fitted, None),
+            Some(m) => subsampled(values, counts, fitted, m, pre.seed)?,
+        };
         let data = Standardised::with_counts(&fitted, counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
@@ -198,6 +204,7 @@ impl Prepared {
             min: s.min,
             max: s.max,
             recording: Some(recording),
+            subsample_of,
         };
         Ok(Prepared {
             config,
@@ -207,6 +214,28 @@ impl Prepared {
             cells,
         })
     }
+}
+
+/// The columns of the sample cut to a simple random subsample of at most `m`
+/// observations from the stream of `seed` (src/data/subsample.rs), with the number of
+/// observations before (None when there were no more than `m`).
+#[allow(clippy::type_complexity)]
+fn subsampled(
+    values: Vec<f64>,
+    counts: Option<Vec<u64>>,
+    fitted: Vec<f64>,
+    m: u64,
+    seed: u64,
+) -> Result<(Vec<f64>, Option<Vec<u64>>, Vec<f64>, Option<u64>)> {
+    let mut rng = check_rng(seed, SUBSAMPLE_PURPOSE);
+    let Some(kept) = choose(values.len(), counts.as_deref(), m, &mut rng)? else {
+        return Ok((values, counts, fitted, None));
+    };
+    let total = counts
+        .as_ref()
+        .map_or(values.len() as u64, |c| c.iter().sum());
+    let pick = |v: &[f64]| kept.rows.iter().map(|&i| v[i]).collect::<Vec<f64>>();
+    Ok((pick(&values), kept.counts, pick(&fitted), Some(total)))
 }
 
 /// `text` with its data path replaced by the absolute path in `dir/manifest.json`, when

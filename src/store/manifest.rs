@@ -34,6 +34,10 @@ pub struct DataRecord {
     /// found in them (absent in runs made before it was recorded).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub recording: Option<crate::data::Recording>,
+    /// With `[data] subsample`: the observations in the data, of which the run fitted the
+    /// random subsample of `n` (absent when every observation was fitted).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subsample_of: Option<u64>,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
