@@ -53,8 +53,9 @@ pub(super) fn advice(failures: &[Failure], c: AdviceContext) -> Vec<String> {
             Some(n) if n > IMPRACTICAL * c.draws_per_chain => format!(
                 "; about {n} more per chain (`mixband extend <run> --draws {n}`) would be needed to lift the \
                  lowest ESS ({lowest:.0}) above {}, {} times this run's length, which is unlikely to be \
-                 practical: the chains barely move (the usual cause is a large sample: docs/model.md, \"Large \
-                 samples mix badly\"; figures in docs/performance.md, \"Time to a converged answer\"), so \
+                 practical: the chains barely move (on a large sample the usual cause is its size: docs/model.md, \"Large \
+                 samples mix badly\"; figures in docs/performance.md, \"Time to a converged answer\"; on a \
+                 small one, values tied on a lattice and treated as exact: set `[data] resolution`), so \
                  report nothing from this run. If the run has no re-split moves, `[sampler] resplit_moves = 3` raises the ESS \
                  per draw several times over at about six times the cost of a sweep, not always enough to pass \
                  (docs/model.md, \"Re-split moves\"). A random subsample of about 10 000 observations (`[data] subsample = 10000`, \
