@@ -91,10 +91,16 @@ pub fn decide(report: &DiagnosticsReport, draws: usize, max_draws: usize) -> Dec
         if f.passed {
             continue;
         }
-        if matches!(
-            f.status,
-            QuantityStatus::StuckChain | QuantityStatus::Unavailable
-        ) {
+        // A failing figure that is missing or not finite projects nothing (and must not
+        // reach the manifest).
+        let readable = f.rhat.is_some_and(f64::is_finite)
+            && f.ess.iter().all(|e| e.is_some_and(f64::is_finite));
+        if !readable
+            || matches!(
+                f.status,
+                QuantityStatus::StuckChain | QuantityStatus::Unavailable
+            )
+        {
             return Decision::Stop(format!(
                 "{} could not be assessed or stayed at one value in a chain; more draws of \
                  the same chains are not projected to help",
@@ -267,10 +273,22 @@ mod tests {
     }
 
     #[test]
-    fn stuck_chains_too_few_chains_and_incomplete_runs_are_not_grown() {
+    fn stuck_or_unreadable_figures_too_few_chains_and_incomplete_runs_are_not_grown() {
         let t = thresholds();
         let mut p = point(1.5, 10.0, 10.0, &t);
         p.status = QuantityStatus::StuckChain;
+        assert!(matches!(
+            decide(&report(vec![p], vec![]), 1000, 4000),
+            Decision::Stop(_)
+        ));
+        let mut p = point(1.2, 300.0, 900.0, &t);
+        p.ess_tail = None;
+        assert!(matches!(
+            decide(&report(vec![p], vec![]), 1000, 4000),
+            Decision::Stop(w) if w.contains("could not be assessed")
+        ));
+        let mut p = point(1.2, 300.0, 900.0, &t);
+        p.rhat = Some(f64::NAN);
         assert!(matches!(
             decide(&report(vec![p], vec![]), 1000, 4000),
             Decision::Stop(_)
