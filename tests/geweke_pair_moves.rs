@@ -162,30 +162,35 @@ fn resplit_on_cells_location_stick_breaking() {
     check(Kernel::Location, WeightsKind::StickBreaking, true, 56);
 }
 
-/// The moves without the Jacobian of their coordinates sample the wrong law; the test
-/// must see it on both kernels.
-#[test]
-fn joint_test_rejects_the_moves_without_their_jacobian() {
+/// `wrong` samples the wrong law; the joint-distribution test must see it on both kernels
+/// (`what` names the fault in the message).
+fn assert_fault_detected(wrong: Moves, seed: u64, what: &str) {
     let limit = bonferroni_threshold(0.001, test_fns().len());
     let plan = Plan {
         mc_draws: 20_000,
         sc_sweeps: 20_000,
         batches: 40,
-        seed: 57,
+        seed,
         ..PLAN
     };
     for kernel in [Kernel::LocationScale, Kernel::Location] {
         let p = prior(kernel, WeightsKind::Dirichlet);
-        let wrong = Moves {
-            resplit_target: ResplitTarget::WithoutJacobian,
-            ..RESPLIT
-        };
         let (z, t) = worst(&p, plan, false, wrong);
         assert!(
             z > limit,
-            "{kernel:?}: missing Jacobian not detected: |z| {z:.2}\n{t}"
+            "{kernel:?}: {what} not detected: |z| {z:.2}\n{t}"
         );
     }
+}
+
+/// The moves without the Jacobian of their coordinates sample the wrong law.
+#[test]
+fn joint_test_rejects_the_moves_without_their_jacobian() {
+    let wrong = Moves {
+        resplit_target: ResplitTarget::WithoutJacobian,
+        ..RESPLIT
+    };
+    assert_fault_detected(wrong, 57, "missing Jacobian");
 }
 
 #[test]
@@ -248,30 +253,14 @@ fn both_moves_on_cells_location_stick_breaking() {
     check_moves(Kernel::Location, WeightsKind::StickBreaking, true, 66, BOTH);
 }
 
-/// The relocation moves without q(x) / q(x′) in their ratio sample the wrong law; the
-/// test must see it on both kernels.
+/// The relocation moves without q(x) / q(x′) in their ratio sample the wrong law.
 #[test]
 fn joint_test_rejects_relocation_without_its_proposal_ratio() {
-    let limit = bonferroni_threshold(0.001, test_fns().len());
-    let plan = Plan {
-        mc_draws: 20_000,
-        sc_sweeps: 20_000,
-        batches: 40,
-        seed: 67,
-        ..PLAN
+    let wrong = Moves {
+        relocate_target: RelocateTarget::WithoutProposal,
+        ..RELOCATE
     };
-    for kernel in [Kernel::LocationScale, Kernel::Location] {
-        let p = prior(kernel, WeightsKind::Dirichlet);
-        let wrong = Moves {
-            relocate_target: RelocateTarget::WithoutProposal,
-            ..RELOCATE
-        };
-        let (z, t) = worst(&p, plan, false, wrong);
-        assert!(
-            z > limit,
-            "{kernel:?}: missing proposal ratio not detected: |z| {z:.2}\n{t}"
-        );
-    }
+    assert_fault_detected(wrong, 67, "missing proposal ratio");
 }
 
 /// The moves after the collapsed sweep (the default up to 20 000 observations).
