@@ -14,7 +14,7 @@ mod template;
 pub use check::CheckSettings;
 pub use raw::{AllocationKind, HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
 pub use resolve::{
-    check_chain_ids, check_levels as resolve_check_levels, default_components, parse_config_file,
-    parse_config_str, resolve, PriorValues, RunConfig,
+    allocation_for, check_chain_ids, check_levels as resolve_check_levels, default_components,
+    parse_config_file, parse_config_str, resolve, PriorValues, RunConfig,
 };
 pub use template::TEMPLATE;

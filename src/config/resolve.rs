@@ -38,6 +38,19 @@ const MAX_RESPLIT: i64 = 1000;
 /// Largest sample for which `[sampler] allocation` defaults to "collapsed".
 pub const COLLAPSED_MAX_N: usize = 20_000;
 
+/// The allocation step a run uses: the one the config names, else the collapsed scan up
+/// to [`COLLAPSED_MAX_N`] observations (counted with their frequency weights) and the
+/// conditional step beyond. The collapsed scan is sequential and costs a few times the
+/// vectorised conditional step per sweep, for two to six times the effective draws per
+/// sweep (docs/model.md). `n` is None before the data are read.
+pub fn allocation_for(given: Option<AllocationKind>, n: Option<usize>) -> AllocationKind {
+    match (given, n) {
+        (Some(a), _) => a,
+        (None, Some(n)) if n > COLLAPSED_MAX_N => AllocationKind::Conditional,
+        (None, _) => AllocationKind::Collapsed,
+    }
+}
+
 /// Largest accepted values of the count keys: beyond them a run could not finish or would
 /// exhaust memory, so they are refused as input errors instead.
 const MAX_CHAINS: i64 = 1000;
@@ -375,27 +388,7 @@ pub fn resolve(
     let alpha_shape = ck.positive("alpha_shape", p.alpha_shape)?;
     let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
 
-    // The collapsed scan is sequential and costs a few times the vectorised conditional
-    // step per sweep, for two to six times the effective draws per sweep (docs/model.md);
-    // beyond COLLAPSED_MAX_N observations the default is the conditional step.
-    let allocation = match (s.allocation, &freq_weights, summary) {
-        // With a resolution the sampler draws each observation's exact value, so the
-        // collapsed scan can run on weighted rows too.
-        (Some(AllocationKind::Collapsed), Some(_), _) if resolution.is_none() => {
-            return Err(ck.fail(
-                "sampler",
-                "allocation",
-                "= \"collapsed\" does not support [data] weights without [data] resolution; \
-                 use \"conditional\""
-                    .into(),
-            ))
-        }
-        (Some(a), _, _) => a,
-        (None, Some(_), _) if resolution.is_none() => AllocationKind::Conditional,
-        (None, _, Some(d)) if d.n > COLLAPSED_MAX_N => AllocationKind::Conditional,
-        (None, _, _) => AllocationKind::Collapsed,
-    };
-
+    let allocation = allocation_for(s.allocation, summary.map(|d| d.n));
     let g = raw.grid.clone().unwrap_or_default();
     let from = ck.finite("grid", "from", g.from)?;
     let to = ck.finite("grid", "to", g.to)?;

@@ -7,7 +7,9 @@ use std::path::Path;
 use sha2::{Digest, Sha256};
 
 use super::loaded::{load_sample, load_sample_in_memory, Loaded};
-use crate::config::{parse_config_str, resolve, RunConfig};
+use crate::config::{
+    allocation_for, parse_config_str, resolve, AllocationKind, RawConfig, RunConfig,
+};
 use crate::data::subsample::{choose, SUBSAMPLE_PURPOSE};
 use crate::data::{Cells, DataSummary, HashingReader, Standardised, Transform};
 use crate::error::{Error, Result};
@@ -139,6 +141,7 @@ impl Prepared {
             None => (values, counts, fitted, None),
             Some(m) => subsampled(values, counts, fitted, m, pre.seed)?,
         };
+        let (values, counts, fitted) = expanded_for_scan(&raw, &pre, values, counts, fitted);
         let data = Standardised::with_counts(&fitted, counts.clone(), &data_origin)?;
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
@@ -236,6 +239,39 @@ fn subsampled(
         .map_or(values.len() as u64, |c| c.iter().sum());
     let pick = |v: &[f64]| kept.rows.iter().map(|&i| v[i]).collect::<Vec<f64>>();
     Ok((pick(&values), kept.counts, pick(&fitted), Some(total)))
+}
+
+/// The columns with every weighted row written out as many times as its count, in row
+/// order, when the run's allocation step is the collapsed scan and the values are exact
+/// (no `[data] resolution`): the scan and its split–merge moves update one observation at
+/// a time, so they run on the rows the table stands for, and the run is the one the
+/// written-out rows would give, draw for draw (tests/frequency_weights.rs). The weighted
+/// rows are kept as they are otherwise: the conditional step and the sweep given cells
+/// work per distinct row. Memory and each sweep then grow with the total count, not with
+/// the rows; the default picks the collapsed scan only up to 20 000 observations.
+fn expanded_for_scan(
+    raw: &RawConfig,
+    pre: &RunConfig,
+    values: Vec<f64>,
+    counts: Option<Vec<u64>>,
+    fitted: Vec<f64>,
+) -> (Vec<f64>, Option<Vec<u64>>, Vec<f64>) {
+    let Some(c) = counts.as_deref() else {
+        return (values, counts, fitted);
+    };
+    let total = c.iter().sum::<u64>() as usize;
+    let given = raw.sampler.as_ref().and_then(|s| s.allocation);
+    if pre.resolution.is_some() || allocation_for(given, Some(total)) != AllocationKind::Collapsed {
+        return (values, counts, fitted);
+    }
+    let out = |v: &[f64]| {
+        let mut e = Vec::with_capacity(total);
+        for (&x, &k) in v.iter().zip(c) {
+            e.extend(std::iter::repeat_n(x, k as usize));
+        }
+        e
+    };
+    (out(&values), None, out(&fitted))
 }
 
 /// `text` with its data path replaced by the absolute path in `dir/manifest.json`, when

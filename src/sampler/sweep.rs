@@ -61,7 +61,8 @@ pub struct SweepOptions<'a> {
     /// Threads and instruction set of the allocation; the draws do not depend on them.
     pub alloc: AllocOptions,
     /// Integer frequency weights, one per row of `x` (`None`: every row counts once, the
-    /// fast path).
+    /// fast path). Read by the conditional step only: a collapsed run takes a weighted
+    /// table as its rows written out (`run::prepare`).
     pub counts: Option<&'a [u64]>,
     /// The cells the data stand for when they were recorded at a resolution; when given,
     /// the sweep samples given the cells and `x` and `counts` are not read.
