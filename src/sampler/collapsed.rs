@@ -122,7 +122,7 @@ impl Predictive {
 /// D[n + 1] = ln(a + n/2) − D[n] (from Γ(y + 1) = y Γ(y)) started at D[0] from statrs'
 /// ln Γ: N logarithms, built once per scan. The recurrence is well conditioned
 /// (D[n] ≈ ½ ln(a + n/2)); tested against direct ln Γ differences below.
-pub(crate) struct HalfSteps(Vec<f64>);
+pub(crate) struct HalfSteps(pub(crate) Vec<f64>);
 
 impl HalfSteps {
     pub(crate) fn new(a: f64, n: usize) -> Self {

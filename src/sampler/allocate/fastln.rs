@@ -15,15 +15,15 @@
 use super::lanes::Lanes;
 
 /// Bits of √½: subtracting them leaves e in the exponent field.
-const SQRT_HALF_BITS: u64 = 0x3FE6_A09E_667F_3BCD;
+pub(crate) const SQRT_HALF_BITS: u64 = 0x3FE6_A09E_667F_3BCD;
 /// 2^52 as bits; OR-ing a small integer into its mantissa and subtracting 2^52 converts
 /// the integer to a double exactly.
-const TWO52_BITS: u64 = 0x4330_0000_0000_0000;
+pub(crate) const TWO52_BITS: u64 = 0x4330_0000_0000_0000;
 /// ln 2 split (the fdlibm constants): e · LN2_HI is exact for |e| < 2^11.
-const LN2_HI: f64 = f64::from_bits(0x3FE6_2E42_FEE0_0000);
-const LN2_LO: f64 = f64::from_bits(0x3DEA_39EF_3579_3C76);
+pub(crate) const LN2_HI: f64 = f64::from_bits(0x3FE6_2E42_FEE0_0000);
+pub(crate) const LN2_LO: f64 = f64::from_bits(0x3DEA_39EF_3579_3C76);
 /// 2/(2i + 1), i = 9 down to 1 (the i = 0 term, 2, is added last).
-const COEF: [f64; 9] = [
+pub(crate) const COEF: [f64; 9] = [
     2.0 / 19.0,
     2.0 / 17.0,
     2.0 / 15.0,

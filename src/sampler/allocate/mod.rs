@@ -23,6 +23,7 @@ pub mod fastln;
 mod lanes;
 mod parallel;
 pub mod reference;
+pub mod shortchain;
 mod types;
 pub mod weighted;
 
