@@ -10,7 +10,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 use serde::{Deserialize, Serialize};
 
-use super::allocate::{loglik_reference, loglik_weighted, loglik_with, ComponentTable};
+use super::allocate::{loglik_labelled, loglik_weighted, loglik_with, ComponentTable};
 use super::censored::loglik_censored;
 use super::rng::StreamKey;
 use super::sweep::{sweep_opts, SweepOptions};
@@ -142,8 +142,8 @@ pub fn run_chain_opts(
         let ll = match (opts.cells, opts.counts) {
             (Some(cells), _) => loglik_censored(cells, &state),
             (None, Some(c)) => loglik_weighted(x, c, &table),
-            // The collapsed sweep's first pass uses the reference arithmetic.
-            (None, None) if prior.collapsed => loglik_reference(x, &table),
+            // The collapsed sweep's first pass records the allocations (allocate::labelled).
+            (None, None) if prior.collapsed => loglik_labelled(x, &table, opts.alloc.simd),
             (None, None) => loglik_with(x, &table, opts.alloc),
         };
         sink.draw(KeptDraw {

@@ -5,8 +5,7 @@
 
 use super::allocate::SuffStats;
 use super::allocate::{
-    allocate_reference_labels, allocate_weighted, allocate_with, AllocOptions, Allocation,
-    ComponentTable,
+    allocate_labelled, allocate_weighted, allocate_with, AllocOptions, Allocation, ComponentTable,
 };
 use super::cell_counts::allocate_cell_counts;
 use super::cell_params::{update_components_given_cells, CellRatio, CellTally};
@@ -143,7 +142,7 @@ pub fn sweep_opts(
         (Some(cells), _) => censored_allocation(cells, prior, state, key, index),
         (None, Some(c)) => allocate_weighted(x, c, &table, key, index),
         (None, None) if prior.collapsed => {
-            collapsed_allocation(x, prior, state, &table, key, index)
+            collapsed_allocation(x, prior, state, &table, key, index, opts.alloc)
         }
         (None, None) => allocate_with(x, &table, key, index, opts.alloc),
     };
@@ -270,8 +269,8 @@ fn run_pair_moves(
     (resplits, relocations)
 }
 
-/// The allocation drawn given the parameters (reference arithmetic, recording each
-/// observation's component), then one collapsed scan and the split–merge proposals; the
+/// The allocation drawn given the parameters (recording each observation's component,
+/// `allocate::labelled`), then one collapsed scan and the split–merge proposals; the
 /// log-likelihood is that of the
 /// state the sweep started from, as on the fast path.
 fn collapsed_allocation(
@@ -281,9 +280,10 @@ fn collapsed_allocation(
     table: &ComponentTable,
     key: &StreamKey,
     index: u64,
+    alloc: AllocOptions,
 ) -> Allocation {
     let mut z = vec![0u32; x.len()];
-    let first = allocate_reference_labels(x, table, key, index, Some(&mut z));
+    let first = allocate_labelled(x, table, key, index, &mut z, alloc.simd);
     let mut stats = collapsed_scan(x, &mut z, prior, state, &mut key.collapsed_rng(index));
     split_merge(
         x,

@@ -14,12 +14,14 @@
 //!   written once over `lanes` (vectors of 1, 2, 4 or 8 doubles);
 //! - [`dispatch`]: the instruction set chosen at run time;
 //! - `parallel`: blocks split over threads;
-//! - [`weighted`]: rows with integer frequency weights (reference arithmetic).
+//! - [`weighted`]: rows with integer frequency weights (reference arithmetic);
+//! - [`labelled`]: the pass that records each observation's component (collapsed sweep).
 
 pub mod blocked;
 pub mod dispatch;
 pub mod fastexp;
 pub mod fastln;
+pub mod labelled;
 mod lanes;
 mod parallel;
 pub mod reference;
@@ -28,6 +30,7 @@ mod types;
 pub mod weighted;
 
 pub use dispatch::{ExpKind, Simd};
+pub use labelled::{allocate_labelled, loglik_labelled};
 pub use parallel::thread_split;
 pub use reference::{allocate_reference, allocate_reference_labels, loglik_reference};
 pub use types::{Allocation, ComponentTable, SuffStats, BLOCK};
