@@ -70,7 +70,7 @@ pub fn run_sampling(prep: &Prepared, threads: usize) -> Result<SamplingResult> {
     let next = AtomicUsize::new(0);
     let stop = AtomicBool::new(false);
     let slots: Vec<ChainSlot> = (0..chains).map(|_| Mutex::new(None)).collect();
-    let x = &prep.data.z;
+    let (x, _) = prep.sampler_data();
     let t0 = Instant::now();
     std::thread::scope(|s| {
         for _ in 0..workers {

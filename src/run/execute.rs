@@ -246,7 +246,7 @@ pub(crate) fn execute_holding(
             prep.data.summary.n
         },
     };
-    let x = &prep.data.z;
+    let (x, _) = prep.sampler_data();
     let multi = MultiProgress::with_draw_target(if opts.quiet {
         ProgressDrawTarget::hidden()
     } else {
@@ -399,7 +399,7 @@ fn run_one(
     writer = writer.with_progress(bar);
     let opts = SweepOptions {
         alloc,
-        counts: prep.data.counts.as_deref(),
+        counts: prep.sampler_data().1,
         cells: prep.cells.as_ref(),
         resplit_pairs: prep.config.resplit_moves,
         relocate_moves: prep.config.relocate_moves,

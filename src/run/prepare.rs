@@ -26,6 +26,20 @@ pub struct Prepared {
     pub record: DataRecord,
     /// The cells the values stand for when `[data] resolution` is set.
     pub cells: Option<Cells>,
+    /// The weighted rows of `data` written out, one value per observation in row order
+    /// (standard units), when the collapsed scan runs on a table of exact values
+    /// ([`expanded_for_scan`]); `data` keeps the rows and counts for everything else.
+    pub scan_rows: Option<Vec<f64>>,
+}
+
+impl Prepared {
+    /// What the sampler reads: the values (standard units) and their counts.
+    pub fn sampler_data(&self) -> (&[f64], Option<&[u64]>) {
+        match &self.scan_rows {
+            Some(rows) => (rows, None),
+            None => (&self.data.z, self.data.counts.as_deref()),
+        }
+    }
 }
 
 /// Lower-case hex SHA-256 of `bytes`.
@@ -141,8 +155,28 @@ impl Prepared {
             None => (values, counts, fitted, None),
             Some(m) => subsampled(values, counts, fitted, m, pre.seed)?,
         };
-        let (values, counts, fitted) = expanded_for_scan(&raw, &pre, values, counts, fitted);
-        let data = Standardised::with_counts(&fitted, counts.clone(), &data_origin)?;
+        let (data, scan_rows) = match expanded_for_scan(&raw, &pre, counts.as_deref(), &fitted) {
+            // The centre, scale and summary of the rows written out, so that the run is
+            // the one those rows give; `data` keeps the table, standardised alike.
+            Some(rows) => {
+                let rows = Standardised::with_counts(&rows, None, &data_origin)?;
+                let table = Standardised {
+                    z: fitted
+                        .iter()
+                        .map(|&v| (v - rows.centre) / rows.scale)
+                        .collect(),
+                    counts: counts.clone(),
+                    centre: rows.centre,
+                    scale: rows.scale,
+                    summary: rows.summary,
+                };
+                (table, Some(rows.z))
+            }
+            None => (
+                Standardised::with_counts(&fitted, counts.clone(), &data_origin)?,
+                None,
+            ),
+        };
         let mut config = resolve(&raw, text, origin, dir, Some(&data.summary))?;
         config.seed = pre.seed;
         if pre.transform != Transform::None {
@@ -215,6 +249,7 @@ impl Prepared {
             prior,
             record,
             cells,
+            scan_rows,
         })
     }
 }
@@ -241,37 +276,31 @@ fn subsampled(
     Ok((pick(&values), kept.counts, pick(&fitted), Some(total)))
 }
 
-/// The columns with every weighted row written out as many times as its count, in row
-/// order, when the run's allocation step is the collapsed scan and the values are exact
-/// (no `[data] resolution`): the scan and its split–merge moves update one observation at
-/// a time, so they run on the rows the table stands for, and the run is the one the
-/// written-out rows would give, draw for draw (tests/frequency_weights.rs). The weighted
-/// rows are kept as they are otherwise: the conditional step and the sweep given cells
-/// work per distinct row. Memory and each sweep then grow with the total count, not with
-/// the rows; the default picks the collapsed scan only up to 20 000 observations.
+/// The fitted values with every weighted row written out as many times as its count, in
+/// row order, when the run's allocation step is the collapsed scan and the values are
+/// exact (no `[data] resolution`): the scan and its split–merge moves update one
+/// observation at a time, so they run on the rows the table stands for, and the draws are
+/// those the written-out rows give, bit for bit (tests/frequency_weights.rs). None
+/// otherwise: the conditional step and the sweep given cells work per row. Memory and
+/// each sweep then grow with the total count, not with the rows; the default picks the
+/// collapsed scan only up to 20 000 observations.
 fn expanded_for_scan(
     raw: &RawConfig,
     pre: &RunConfig,
-    values: Vec<f64>,
-    counts: Option<Vec<u64>>,
-    fitted: Vec<f64>,
-) -> (Vec<f64>, Option<Vec<u64>>, Vec<f64>) {
-    let Some(c) = counts.as_deref() else {
-        return (values, counts, fitted);
-    };
+    counts: Option<&[u64]>,
+    fitted: &[f64],
+) -> Option<Vec<f64>> {
+    let c = counts?;
     let total = c.iter().sum::<u64>() as usize;
     let given = raw.sampler.as_ref().and_then(|s| s.allocation);
     if pre.resolution.is_some() || allocation_for(given, Some(total)) != AllocationKind::Collapsed {
-        return (values, counts, fitted);
+        return None;
     }
-    let out = |v: &[f64]| {
-        let mut e = Vec::with_capacity(total);
-        for (&x, &k) in v.iter().zip(c) {
-            e.extend(std::iter::repeat_n(x, k as usize));
-        }
-        e
-    };
-    (out(&values), None, out(&fitted))
+    let mut e = Vec::with_capacity(total);
+    for (&x, &k) in fitted.iter().zip(c) {
+        e.extend(std::iter::repeat_n(x, k as usize));
+    }
+    Some(e)
 }
 
 /// `text` with its data path replaced by the absolute path in `dir/manifest.json`, when
