@@ -8,7 +8,7 @@ mod common;
 use mixband::check::{check_run, CheckReport, Tail};
 use mixband::config::{parse_config_str, resolve};
 use mixband::model::{draw_from_prior, simulate_data, Prior};
-use mixband::run::{execute, ExecOptions, Mode, Prepared};
+use mixband::run::Prepared;
 use mixband::store::RunLayout;
 use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
@@ -33,13 +33,7 @@ fn fit_and_check(
     std::fs::write(dir.join("run.toml"), config).unwrap();
     let prep = Prepared::from_config_file(&dir.join("run.toml")).unwrap();
     let out = dir.join("run");
-    let stop = std::sync::atomic::AtomicBool::new(false);
-    let opts = ExecOptions {
-        threads: 2,
-        quiet: true,
-        stop: &stop,
-    };
-    execute(&prep, &out, Mode::Fresh { force: true }, opts, &[]).unwrap();
+    common::execute_quiet(&prep, &out, true).unwrap();
     let r = check_run(&RunLayout::new(&out), &prep, threads).unwrap();
     (prep, r)
 }

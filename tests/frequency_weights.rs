@@ -342,7 +342,7 @@ fn weighted_and_expanded_runs_give_the_same_posterior() {
 /// conditional step the table stays weighted.
 #[test]
 fn weighted_table_on_the_collapsed_scan_is_its_rows_written_out() {
-    use mixband::run::{execute, ExecOptions, Mode, Prepared};
+    use mixband::run::Prepared;
     let fit = |tag: &str, csv: &str, weights: bool, extra: &str| {
         let body = format!(
             "[model]\ncomponents = 5\n\n[sampler]\nchains = 2\nwarmup = 200\ndraws = 300\n\
@@ -360,14 +360,8 @@ fn weighted_table_on_the_collapsed_scan_is_its_rows_written_out() {
         let prep = Prepared::from_config_file(&cfg).unwrap();
         assert_eq!(prep.record.n, 60);
         let out = dir.join("run");
-        let stop = std::sync::atomic::AtomicBool::new(false);
-        let opts = ExecOptions {
-            threads: 2,
-            quiet: true,
-            stop: &stop,
-        };
         // The gate may fail on this short run; the outputs are written either way.
-        if let Err(e) = execute(&prep, &out, Mode::Fresh { force: false }, opts, &[]) {
+        if let Err(e) = common::execute_quiet(&prep, &out, false) {
             eprintln!("{tag}: {e}");
         }
         let read =

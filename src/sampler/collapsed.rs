@@ -392,12 +392,12 @@ pub fn scan<R: Rng + ?Sized>(
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
     use crate::config::{Kernel, WeightsKind};
     use crate::model::{Concentration, VarScale};
 
-    fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
+    pub(crate) fn prior(kernel: Kernel, weights: WeightsKind) -> Prior {
         Prior {
             kernel,
             weights,
@@ -413,7 +413,7 @@ mod tests {
         }
     }
 
-    fn state(k: usize) -> State {
+    pub(crate) fn state(k: usize) -> State {
         State {
             log_w: vec![-(k as f64).ln(); k],
             log_v: vec![],

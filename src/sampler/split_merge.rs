@@ -453,7 +453,7 @@ fn set(stats: &mut SuffStats, k: usize, (n, s1, s2): (u64, f64, f64)) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::model::{Concentration, VarScale};
+    use crate::sampler::collapsed::tests::{prior, state};
     use rand::SeedableRng;
 
     /// The pass's predictive equals the collapsed scan's (`predictive_terms` then
@@ -467,28 +467,7 @@ mod tests {
     fn pass_predictive_matches_the_scan_predictive() {
         let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(5);
         for kernel in [Kernel::Location, Kernel::LocationScale] {
-            let prior = Prior {
-                kernel,
-                weights: WeightsKind::Dirichlet,
-                components: 3,
-                centre: 0.3,
-                centre_sd: 1.7,
-                centre_shrink: 0.4,
-                var_shape: 2.5,
-                var_scale: VarScale::Fixed(0.8),
-                concentration: Concentration::Fixed(0.7),
-                label_moves: false,
-                collapsed: true,
-            };
-            let state = State {
-                log_w: vec![-(3f64).ln(); 3],
-                log_v: vec![],
-                log_1mv: vec![],
-                mu: vec![0.0; 3],
-                var: vec![0.6; 3],
-                concentration: 0.7,
-                var_scale: 0.8,
-            };
+            let (prior, state) = (prior(kernel, WeightsKind::Dirichlet), state(3));
             let tables = PassTables::new(&prior, 500);
             // The size of the terms the location-scale form subtracts.
             let magnitude = |t: &[f64; 4], x: f64| match kernel {
@@ -530,28 +509,10 @@ mod tests {
         let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(17);
         let n = 3002;
         let x: Vec<f64> = (0..n).map(|_| rng.random::<f64>() - 0.5).collect();
-        let prior = Prior {
-            kernel: Kernel::LocationScale,
-            weights: WeightsKind::Dirichlet,
-            components: 2,
-            centre: 0.0,
-            centre_sd: 1.0,
-            centre_shrink: 0.2,
-            var_shape: 2.0,
-            var_scale: VarScale::Fixed(0.5),
-            concentration: Concentration::Fixed(1.0),
-            label_moves: false,
-            collapsed: true,
-        };
-        let state = State {
-            log_w: vec![-(2f64).ln(); 2],
-            log_v: vec![],
-            log_1mv: vec![],
-            mu: vec![0.0; 2],
-            var: vec![1.0; 2],
-            concentration: 1.0,
-            var_scale: 0.5,
-        };
+        let (prior, state) = (
+            prior(Kernel::LocationScale, WeightsKind::Dirichlet),
+            state(2),
+        );
         let tables = PassTables::new(&prior, n);
         let members: Vec<usize> = (2..n).collect();
         let pass = |z: Option<&[u32]>, rng: &mut rand_chacha::ChaCha8Rng| {

@@ -101,6 +101,24 @@ pub fn scratch_dir(tag: &str) -> PathBuf {
     dir
 }
 
+/// A fresh run of `prep` into `out` on two threads with no progress bars (`force`
+/// replaces an earlier run there).
+#[allow(dead_code)]
+pub fn execute_quiet(
+    prep: &mixband::run::Prepared,
+    out: &std::path::Path,
+    force: bool,
+) -> mixband::error::Result<mixband::run::RunOutcome> {
+    use mixband::run::{execute, ExecOptions, Mode};
+    let stop = std::sync::atomic::AtomicBool::new(false);
+    let opts = ExecOptions {
+        threads: 2,
+        quiet: true,
+        stop: &stop,
+    };
+    execute(prep, out, Mode::Fresh { force }, opts, &[])
+}
+
 /// Writes `config` (with `data.csv` already in `dir`) to `dir/run.toml`, runs it to
 /// completion into `dir/run` on two threads, and returns the prepared run, its stored
 /// draws and the density draws on `points` grid points from `from` to `to`.
@@ -113,19 +131,13 @@ pub fn run_to_density(
     mixband::store::RunDraws,
     mixband::summary::DensityDraws,
 ) {
-    use mixband::run::{execute, ExecOptions, Mode, Prepared};
+    use mixband::run::Prepared;
     use mixband::store::{read_run_draws, Manifest, RunLayout};
     let cfg_path = dir.join("run.toml");
     std::fs::write(&cfg_path, config).unwrap();
     let prep = Prepared::from_config_file(&cfg_path).unwrap();
     let out = dir.join("run");
-    let stop = std::sync::atomic::AtomicBool::new(false);
-    let opts = ExecOptions {
-        threads: 2,
-        quiet: true,
-        stop: &stop,
-    };
-    execute(&prep, &out, Mode::Fresh { force: false }, opts, &[]).unwrap();
+    execute_quiet(&prep, &out, false).unwrap();
     let layout = RunLayout::new(&out);
     let manifest = Manifest::read(&layout.manifest()).unwrap();
     let draws = read_run_draws(&layout.draws_dir(), &manifest.chain_ids()).unwrap();

@@ -58,16 +58,28 @@ pub(crate) const TABLE: [u64; 16] = [
 /// garbage; the allocation only passes a ≤ 0).
 #[inline(always)]
 pub fn exp_fast(a: f64) -> f64 {
-    let y = a * SCALE;
-    let t = y + ROUND_MAGIC;
-    let n = t - ROUND_MAGIC;
-    let f = y - n;
+    let (f, tb) = reduce(a);
     // Horner's rule (Estrin's scheme, one multiply more for a shorter chain, measured
     // slower: the kernel is bound by the vector ports, not by latency).
     let p = ((((A5 * f + A4) * f + A3) * f + A2) * f + A1) * f + 1.0;
+    scale_back(a, p, tb)
+}
+
+/// The reduction: f = y − N ∈ [−½, ½] with y = 16 a log₂e and N = round(y), and the bits
+/// of t = y + 1.5 · 2^52, whose low bits hold N.
+#[inline(always)]
+pub(crate) fn reduce(a: f64) -> (f64, u64) {
+    let y = a * SCALE;
+    let t = y + ROUND_MAGIC;
+    let n = t - ROUND_MAGIC;
+    (y - n, t.to_bits())
+}
+
+/// p(f) · 2^(N/16) from the bits `tb` of [`reduce`], 0 below the normal range.
+#[inline(always)]
+pub(crate) fn scale_back(a: f64, p: f64, tb: u64) -> f64 {
     // t's low bits hold N (two's complement): the low 4 index the table, and N << 48
     // carries ⌊N/16⌋ into the exponent field (and j into the bits the table took it from).
-    let tb = t.to_bits();
     let scale = f64::from_bits(TABLE[(tb & 15) as usize].wrapping_add(tb << 48));
     let r = p * scale;
     // Far below the normal range (and for −∞, where the steps above give NaN) the result

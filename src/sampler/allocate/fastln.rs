@@ -79,17 +79,17 @@ pub fn ln_positive(y: f64) -> f64 {
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
 
-    /// Against std's `ln` over [1e-300, 1e300] (log-uniform) and just above 1.
-    #[test]
-    fn ln_positive_matches_std_ln() {
+    /// Holds `ln` to std's `ln` within 1.2e-15 · max(1, |ln y|) over [1e-300, 1e300]
+    /// (log-uniform), just above 1, on [½, 2] and at the edge values.
+    pub(crate) fn assert_matches_std_ln(ln: fn(f64) -> f64, seed: u64) {
         use rand::{Rng, SeedableRng};
-        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(9);
+        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(seed);
         let check = |y: f64| {
             let want = y.ln();
-            let got = ln_positive(y);
+            let got = ln(y);
             assert!(
                 (got - want).abs() <= 1.2e-15 * want.abs().max(1.0),
                 "y = {y:e}: {got} vs {want}"
@@ -98,6 +98,7 @@ mod tests {
         for _ in 0..200_000 {
             check(10f64.powf(rng.random::<f64>() * 600.0 - 300.0));
             check(1.0 + 10f64.powf(-16.0 * rng.random::<f64>()));
+            check(0.5 + 1.5 * rng.random::<f64>());
         }
         for y in [
             f64::MIN_POSITIVE,
@@ -109,6 +110,11 @@ mod tests {
         ] {
             check(y);
         }
+    }
+
+    #[test]
+    fn ln_positive_matches_std_ln() {
+        assert_matches_std_ln(ln_positive, 9);
     }
 
     #[test]

@@ -72,9 +72,7 @@ pub fn allocate_labelled(
             block_ll += m + ln_fast_f64(s);
             let j = pick(p, rng.random::<f64>() * s);
             labels[b * BLOCK + i] = j as u32;
-            block_stats.n[j] += 1;
-            block_stats.sum[j] += xi;
-            block_stats.sumsq[j] += xi * xi;
+            block_stats.push(j, xi);
         }
         stats.add(&block_stats);
         loglik += block_ll;

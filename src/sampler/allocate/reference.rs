@@ -83,9 +83,7 @@ pub fn allocate_reference_labels(
             if let Some(l) = labels.as_deref_mut() {
                 l[b * BLOCK + i] = pick as u32;
             }
-            block_stats.n[pick] += 1;
-            block_stats.sum[pick] += xi;
-            block_stats.sumsq[pick] += xi * xi;
+            block_stats.push(pick, xi);
         }
         stats.add(&block_stats);
         loglik += block_ll;

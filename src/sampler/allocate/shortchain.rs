@@ -9,7 +9,7 @@
 //! bits; the accuracy is the same (tests below, against std). Plain multiplies and adds
 //! only, so every instruction set gives the same bits.
 
-use super::fastexp::{A1, A2, A3, A4, A5, MIN_NORMAL_ARG, ROUND_MAGIC, SCALE, TABLE};
+use super::fastexp::{reduce, scale_back, A1, A2, A3, A4, A5};
 use super::fastln::{COEF, LN2_HI, LN2_LO, SQRT_HALF_BITS, TWO52_BITS};
 
 /// ln s for normal s ≥ √½ (and finite): `fastln::ln_fast` by Estrin's scheme.
@@ -56,20 +56,10 @@ pub fn ln_positive(y: f64) -> f64 {
 /// NaN: `fastexp::exp_fast` by Estrin's scheme.
 #[inline(always)]
 pub fn exp(a: f64) -> f64 {
-    let y = a * SCALE;
-    let t = y + ROUND_MAGIC;
-    let n = t - ROUND_MAGIC;
-    let f = y - n;
+    let (f, tb) = reduce(a);
     let f2 = f * f;
     let p = (1.0 + A1 * f) + f2 * ((A2 + A3 * f) + f2 * (A4 + A5 * f));
-    let tb = t.to_bits();
-    let scale = f64::from_bits(TABLE[(tb & 15) as usize].wrapping_add(tb << 48));
-    let r = p * scale;
-    if a < MIN_NORMAL_ARG {
-        0.0
-    } else {
-        r
-    }
+    scale_back(a, p, tb)
 }
 
 #[cfg(test)]
@@ -77,26 +67,10 @@ mod tests {
     use super::*;
     use rand::{Rng, SeedableRng};
 
-    /// The bounds `fastln`'s test holds `ln_positive` to, over the same ranges.
+    /// The bounds `fastln`'s test holds its `ln_positive` to, over the same ranges.
     #[test]
     fn ln_matches_std_ln() {
-        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(19);
-        let check = |y: f64| {
-            let want = y.ln();
-            let got = ln_positive(y);
-            assert!(
-                (got - want).abs() <= 1.2e-15 * want.abs().max(1.0),
-                "y = {y:e}: {got} vs {want}"
-            );
-        };
-        for _ in 0..200_000 {
-            check(10f64.powf(rng.random::<f64>() * 600.0 - 300.0));
-            check(1.0 + 10f64.powf(-16.0 * rng.random::<f64>()));
-            check(0.5 + 1.5 * rng.random::<f64>());
-        }
-        for y in [f64::MIN_POSITIVE, 0.5, 1.0 - f64::EPSILON, 2.0, f64::MAX] {
-            check(y);
-        }
+        super::super::fastln::tests::assert_matches_std_ln(ln_positive, 19);
         assert_eq!(ln_positive(1.0), 0.0);
         assert_eq!(ln_positive(0.0), f64::NEG_INFINITY);
         assert!(ln_positive(f64::NAN).is_nan());

@@ -57,6 +57,14 @@ impl SuffStats {
     }
 
     /// Sets every entry back to zero.
+    /// Adds observation `x` to component `k`.
+    #[inline(always)]
+    pub fn push(&mut self, k: usize, x: f64) {
+        self.n[k] += 1;
+        self.sum[k] += x;
+        self.sumsq[k] += x * x;
+    }
+
     pub fn clear(&mut self) {
         self.n.iter_mut().for_each(|v| *v = 0);
         self.sum.iter_mut().for_each(|v| *v = 0.0);
