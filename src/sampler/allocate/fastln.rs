@@ -68,11 +68,17 @@ pub fn ln_fast_f64(s: f64) -> f64 {
 /// concentration drawn absurdly small, say) go to std's `ln`.
 #[inline(always)]
 pub fn ln_positive(y: f64) -> f64 {
+    ln_any(y, ln_fast_f64)
+}
+
+/// [`ln_positive`] with `series`, a ln valid for finite y ≥ √½, in place of the fast one.
+#[inline(always)]
+pub(crate) fn ln_any(y: f64, series: impl Fn(f64) -> f64) -> f64 {
     use std::f64::consts::FRAC_1_SQRT_2;
     if (FRAC_1_SQRT_2..=f64::MAX).contains(&y) {
-        ln_fast_f64(y)
+        series(y)
     } else if (f64::MIN_POSITIVE..FRAC_1_SQRT_2).contains(&y) {
-        -ln_fast_f64(1.0 / y)
+        -series(1.0 / y)
     } else {
         y.ln()
     }

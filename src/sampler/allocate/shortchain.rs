@@ -10,7 +10,7 @@
 //! only, so every instruction set gives the same bits.
 
 use super::fastexp::{reduce, scale_back, A1, A2, A3, A4, A5};
-use super::fastln::{COEF, LN2_HI, LN2_LO, SQRT_HALF_BITS, TWO52_BITS};
+use super::fastln::{ln_any, COEF, LN2_HI, LN2_LO, SQRT_HALF_BITS, TWO52_BITS};
 
 /// ln s for normal s ≥ √½ (and finite): `fastln::ln_fast` by Estrin's scheme.
 #[inline(always)]
@@ -42,14 +42,7 @@ fn ln_series(s: f64) -> f64 {
 /// y below it, std's `ln` for zero, subnormal, infinite and NaN y.
 #[inline(always)]
 pub fn ln_positive(y: f64) -> f64 {
-    use std::f64::consts::FRAC_1_SQRT_2;
-    if (FRAC_1_SQRT_2..=f64::MAX).contains(&y) {
-        ln_series(y)
-    } else if (f64::MIN_POSITIVE..FRAC_1_SQRT_2).contains(&y) {
-        -ln_series(1.0 / y)
-    } else {
-        y.ln()
-    }
+    ln_any(y, ln_series)
 }
 
 /// e^a for a ≤ 0 (correct up to a ≈ 709), 0 below the normal range and for −∞, NaN for
