@@ -394,3 +394,41 @@ fn weighted_table_on_the_collapsed_scan_is_its_rows_written_out() {
     assert!(pc.data.counts.is_some() && pc.scan_rows.is_none());
     assert!(c.0 != w.0);
 }
+
+/// A table standing for more observations than the collapsed scan may write out is
+/// refused before anything is expanded, naming the key and its line; the conditional step
+/// takes it.
+#[test]
+fn a_huge_table_on_the_collapsed_scan_is_refused_by_key() {
+    use mixband::run::Prepared;
+    let dir = scratch_dir("fw-huge");
+    std::fs::write(
+        dir.join("data.csv"),
+        "y,count\n1.0,30000000\n2.5,30000000\n",
+    )
+    .unwrap();
+    let cfg = |allocation: &str| {
+        let p = dir.join(format!("{allocation}.toml"));
+        std::fs::write(
+            &p,
+            format!(
+                "[data]\nfile = \"data.csv\"\ncolumn = \"y\"\nweights = \"count\"\n\n\
+                 [sampler]\nseed = 1\nallocation = \"{allocation}\"\n"
+            ),
+        )
+        .unwrap();
+        Prepared::from_config_file(&p)
+    };
+    let e = cfg("collapsed").unwrap_err().to_string();
+    assert!(
+        e.contains("[sampler] allocation")
+            && e.contains("(line 8)")
+            && e.contains("60000000")
+            && e.contains("\"conditional\""),
+        "{e}"
+    );
+    let p = cfg("conditional").unwrap();
+    assert_eq!(p.record.n, 60_000_000);
+    assert!(p.scan_rows.is_none());
+    remove(&dir);
+}

@@ -38,6 +38,10 @@ const MAX_RESPLIT: i64 = 1000;
 /// Largest sample for which `[sampler] allocation` defaults to "collapsed".
 pub const COLLAPSED_MAX_N: usize = 20_000;
 
+/// Most observations a weighted table may stand for on the collapsed scan, which writes it
+/// out one row per observation (8 bytes each in memory, and a sweep as long as N).
+pub const MAX_SCAN_ROWS: usize = 50_000_000;
+
 /// The allocation step a run uses: the one the config names, else the collapsed scan up
 /// to [`COLLAPSED_MAX_N`] observations (counted with their frequency weights) and the
 /// conditional step beyond. The collapsed scan is sequential and costs a few times the
@@ -389,6 +393,25 @@ pub fn resolve(
     let alpha_rate = ck.positive("alpha_rate", p.alpha_rate)?;
 
     let allocation = allocation_for(s.allocation, summary.map(|d| d.n));
+    // The collapsed scan runs on a table of exact values written out row by row
+    // (run/prepare.rs), so a table standing for more observations than memory should
+    // hold is refused rather than expanded.
+    if let (AllocationKind::Collapsed, Some(_), None, Some(d)) =
+        (allocation, &freq_weights, resolution, summary)
+    {
+        if d.n > MAX_SCAN_ROWS {
+            return Err(ck.fail(
+                "sampler",
+                "allocation",
+                format!(
+                    "= \"collapsed\" writes a weighted table out one row per observation, and \
+                     this one stands for {} (more than {MAX_SCAN_ROWS}); use \"conditional\", \
+                     which works per row, or set [data] resolution",
+                    d.n
+                ),
+            ));
+        }
+    }
     let g = raw.grid.clone().unwrap_or_default();
     let from = ck.finite("grid", "from", g.from)?;
     let to = ck.finite("grid", "to", g.to)?;
