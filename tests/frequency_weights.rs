@@ -396,15 +396,16 @@ fn weighted_table_on_the_collapsed_scan_is_its_rows_written_out() {
 }
 
 /// A table standing for more observations than the collapsed scan may write out is
-/// refused before anything is expanded, naming the key and its line; the conditional step
-/// takes it.
+/// refused before anything is expanded, naming the key and its line (the table stands
+/// for 10^15 observations, so writing it out first would fail to allocate); the
+/// conditional step takes it.
 #[test]
 fn a_huge_table_on_the_collapsed_scan_is_refused_by_key() {
     use mixband::run::Prepared;
     let dir = scratch_dir("fw-huge");
     std::fs::write(
         dir.join("data.csv"),
-        "y,count\n1.0,30000000\n2.5,30000000\n",
+        "y,count\n1.0,500000000000000\n2.5,500000000000000\n",
     )
     .unwrap();
     let cfg = |allocation: &str| {
@@ -423,12 +424,12 @@ fn a_huge_table_on_the_collapsed_scan_is_refused_by_key() {
     assert!(
         e.contains("[sampler] allocation")
             && e.contains("(line 8)")
-            && e.contains("60000000")
+            && e.contains("1000000000000000")
             && e.contains("\"conditional\""),
         "{e}"
     );
     let p = cfg("conditional").unwrap();
-    assert_eq!(p.record.n, 60_000_000);
+    assert_eq!(p.record.n, 1_000_000_000_000_000);
     assert!(p.scan_rows.is_none());
     remove(&dir);
 }

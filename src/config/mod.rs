@@ -15,6 +15,6 @@ pub use check::CheckSettings;
 pub use raw::{AllocationKind, HyperChoice, Kernel, MissingPolicy, RawConfig, WeightsKind};
 pub use resolve::{
     allocation_for, check_chain_ids, check_levels as resolve_check_levels, default_components,
-    parse_config_file, parse_config_str, resolve, PriorValues, RunConfig,
+    parse_config_file, parse_config_str, resolve, PriorValues, RunConfig, MAX_SCAN_ROWS,
 };
 pub use template::TEMPLATE;

@@ -394,8 +394,8 @@ pub fn resolve(
 
     let allocation = allocation_for(s.allocation, summary.map(|d| d.n));
     // The collapsed scan runs on a table of exact values written out row by row
-    // (run/prepare.rs), so a table standing for more observations than memory should
-    // hold is refused rather than expanded.
+    // (run/prepare.rs, which leaves a table this large unexpanded), so one standing for
+    // more observations than memory should hold is refused.
     if let (AllocationKind::Collapsed, Some(_), None, Some(d)) =
         (allocation, &freq_weights, resolution, summary)
     {

@@ -8,7 +8,7 @@ use sha2::{Digest, Sha256};
 
 use super::loaded::{load_sample, load_sample_in_memory, Loaded};
 use crate::config::{
-    allocation_for, parse_config_str, resolve, AllocationKind, RawConfig, RunConfig,
+    allocation_for, parse_config_str, resolve, AllocationKind, RawConfig, RunConfig, MAX_SCAN_ROWS,
 };
 use crate::data::subsample::{choose, SUBSAMPLE_PURPOSE};
 use crate::data::{Cells, DataSummary, HashingReader, Standardised, Transform};
@@ -293,7 +293,12 @@ fn expanded_for_scan(
     let c = counts?;
     let total = c.iter().sum::<u64>() as usize;
     let given = raw.sampler.as_ref().and_then(|s| s.allocation);
-    if pre.resolution.is_some() || allocation_for(given, Some(total)) != AllocationKind::Collapsed {
+    // Beyond MAX_SCAN_ROWS the table is left as it is, and `resolve` refuses the config
+    // by its key: nothing that large is written out first.
+    if pre.resolution.is_some()
+        || total > MAX_SCAN_ROWS
+        || allocation_for(given, Some(total)) != AllocationKind::Collapsed
+    {
         return None;
     }
     let mut e = Vec::with_capacity(total);
