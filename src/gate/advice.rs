@@ -59,7 +59,7 @@ pub(super) fn advice(failures: &[Failure], c: AdviceContext) -> Vec<String> {
                  report nothing from this run. If the run has no re-split moves, `[sampler] resplit_moves = 3` raises the ESS \
                  per draw several times over at about six times the cost of a sweep, not always enough to pass \
                  (docs/model.md, \"Re-split moves\"). A random subsample of about 10 000 observations (`[data] subsample = 10000`, \
-                 drawn from the seed without looking at the values) passed the gate in one to four minutes on a 2-core machine for every benchmark density (docs/performance.md); its \
+                 drawn from the seed without looking at the values) passed the gate in about half a minute to two minutes on a 2-core machine for every benchmark density (docs/performance.md); its \
                  bands are honest for the subsample and wider than the whole sample's would be",
                 c.min_ess,
                 n / c.draws_per_chain.max(1)
