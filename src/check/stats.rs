@@ -100,10 +100,10 @@ pub fn kde_modes(sorted: &[f64], h: f64) -> usize {
 /// The Gaussian kernel estimate of `x` with bandwidth `h` at each point of `grid`: the
 /// terms of `plot::kde::gaussian_kde`, each exponential by the allocation step's fast exp
 /// (relative error at most 7e-15 + 2.5e-16 |a| for e^a, the same bits on every
-/// instruction set) a grid point
-/// at a time, summed in the same order. The check computes it for every replicate (500 by
-/// default, each up to 2000 observations on 200 points), where std's exp took about a
-/// tenth of a 1000-observation run's time; only the mode count is kept.
+/// instruction set) a grid point at a time, summed in the same order. The check computes
+/// it for every replicate (500 by default, each up to 2000 observations on 200 points),
+/// where std's exp took about a tenth of the time of a one-chain, 1000-observation run;
+/// only the mode count is kept.
 fn kde_on(x: &[f64], h: f64, grid: &[f64]) -> Vec<f64> {
     let n = x.len() as f64;
     let norm = -(n.ln() + h.ln() + LN_SQRT_2PI);
@@ -179,8 +179,8 @@ mod kde_tests {
     use super::*;
     use crate::plot::kde::gaussian_kde;
 
-    /// The fast-exp estimate against the plotted one (std's exp), which
-    /// tests/kde_evaluator.rs checks against scipy: relative 1e-13 where the density is a
+    /// The fast-exp estimate against the plotted one (std's exp), which tests/plots.rs
+    /// checks against scipy.stats.gaussian_kde: relative 1e-13 where the density is a
     /// normal double.
     #[test]
     fn fast_estimate_matches_the_plotted_estimate() {
