@@ -15,9 +15,10 @@ use std::time::{Duration, Instant};
 
 use robust_support::{assert_ok, assert_same_results, manifest, mixture_csv, stderr, Scratch};
 
-/// Long enough (about a second of sampling per chain) that the signal arrives mid-run.
+/// Long enough (a few seconds of sampling per chain) that the signal arrives mid-run on a
+/// fast machine too.
 const CONFIG: &str = "[data]\nfile = \"d.csv\"\ncolumn = \"value\"\n\n[model]\ncomponents = 6\n\n\
-[sampler]\nchains = 2\nwarmup = 100\ndraws = 2000\nseed = 424242\n";
+[sampler]\nchains = 2\nwarmup = 100\ndraws = 5000\nseed = 424242\n";
 
 /// Checkpoint interval for these tests; it changes when checkpoints happen, never the draws.
 const CHECKPOINT_SECS: &str = "0.1";
@@ -103,7 +104,7 @@ fn sigint_flushes_marks_incomplete_exits_130_and_resume_matches() {
     let run = s.path("run");
     let m = manifest(&run);
     assert_eq!(m["status"], "incomplete");
-    let planned = 100 + 2000;
+    let planned = 100 + 5000; // warmup + draws of CONFIG
     let mut stopped_early = 0;
     for c in m["chains"].as_array().unwrap() {
         let id = c["id"].as_u64().unwrap();

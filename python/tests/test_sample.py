@@ -118,7 +118,9 @@ def test_temporary_run_directory_lives_with_the_result(sample_values):
 def test_interrupt_leaves_a_resumable_run(sample_values, tmp_path):
     """Ctrl-C (SIGINT) during sampling raises KeyboardInterrupt; the run resumes to the
     same draws as an uninterrupted run (chain streams depend only on seed and chain)."""
-    long = dict(SHORT, warmup=500, draws=3000, max_draws=3000)
+    # Several seconds of sampling, so that the signal 0.5 s in arrives while it runs (3000
+    # draws once did; with cheaper sweeps they finished first).
+    long = dict(SHORT, warmup=500, draws=20000, max_draws=20000)
     out = tmp_path / "stopped"
     timer = threading.Timer(0.5, signal.raise_signal, args=(signal.SIGINT,))
     timer.start()
