@@ -143,15 +143,6 @@ pub fn run<R: Rng + ?Sized>(
         } else {
             tally.merges_proposed += 1;
         }
-        // The other members of the component(s) involved, in index order; collected only
-        // when a sequential pass will run (not for a merge rejected on its bound).
-        let collect = |members: &mut Vec<usize>| {
-            members.clear();
-            members.extend(
-                (0..n_obs)
-                    .filter(|&k| k != i && k != j && (z[k] as usize == ci || z[k] as usize == cj)),
-            );
-        };
         let log_prior_now = log_weights_prior(prior, state.concentration, &stats.n);
         let mut n_after = stats.n.clone();
 
@@ -180,21 +171,20 @@ pub fn run<R: Rng + ?Sized>(
             if log_u >= bound {
                 continue;
             }
-            collect(&mut members);
-            let (_, _, log_q) = sequential(
-                x,
-                (i, j),
-                &members,
-                Follow(z, cj),
-                (prior, state, &tables),
-                rng,
-                &mut to_b,
-            );
-            if log_u < bound + log_q {
+            // Accepted iff ln q > log_u − bound. Each member adds a log-probability ≤ 0 to
+            // ln q, so the pass stops as soon as ln q so far is at or below that floor: the
+            // decision the whole pass would make, reached after a few members instead of
+            // all of them for most merges (about 90 % are rejected).
+            let others = (0..n_obs)
+                .filter(|&k| k != i && k != j && (z[k] as usize == ci || z[k] as usize == cj));
+            let parts = (prior, state, &tables);
+            let follow = Follow(z, cj, log_u - bound);
+            if sequential(x, (i, j), others, follow, parts, rng, &mut to_b).is_some() {
                 tally.merges_accepted += 1;
-                z[j] = ci as u32;
-                for &k in &members {
-                    z[k] = ci as u32;
+                for label in z.iter_mut() {
+                    if *label as usize == cj {
+                        *label = ci as u32;
+                    }
                 }
                 set(stats, ci, sm);
                 set(stats, cj, (0, 0.0, 0.0));
@@ -203,16 +193,19 @@ pub fn run<R: Rng + ?Sized>(
         }
 
         // Split.
-        collect(&mut members);
-        let (a, b, log_q) = sequential(
+        members.clear();
+        members.extend((0..n_obs).filter(|&k| k != i && k != j && z[k] as usize == ci));
+        let parts = (prior, state, &tables);
+        let drawn = sequential(
             x,
             (i, j),
-            &members,
+            members.iter().copied(),
             Draw,
-            (prior, state, &tables),
+            parts,
             rng,
             &mut to_b,
         );
+        let (a, b, log_q) = drawn.expect("a drawn split has no floor");
         let sm = (
             a.stats.0 + b.stats.0,
             a.stats.1 + b.stats.1,
@@ -247,17 +240,23 @@ pub fn run<R: Rng + ?Sized>(
 }
 
 /// Whether the sequential allocation draws the sides (a split) or follows the current
-/// split between two components, the second being `.1` (a merge's reverse).
+/// split between two components, the second being `.1` (a merge's reverse), stopping once
+/// ln q is at or below `.2` (the merge is then rejected whatever the rest of the pass).
 struct Draw;
-struct Follow<'a>(&'a [u32], usize);
+struct Follow<'a>(&'a [u32], usize, f64);
 
 trait Side {
     fn goes_b<R: Rng + ?Sized>(&self, k: usize, p_b: f64, rng: &mut R) -> bool;
+    /// The pass stops when ln q so far is at or below this.
+    fn floor(&self) -> f64;
 }
 
 impl Side for Draw {
     fn goes_b<R: Rng + ?Sized>(&self, _: usize, p_b: f64, rng: &mut R) -> bool {
         rng.random::<f64>() < p_b
+    }
+    fn floor(&self) -> f64 {
+        f64::NEG_INFINITY
     }
 }
 
@@ -265,34 +264,43 @@ impl Side for Follow<'_> {
     fn goes_b<R: Rng + ?Sized>(&self, k: usize, _: f64, _: &mut R) -> bool {
         self.0[k] as usize == self.1
     }
+    fn floor(&self) -> f64 {
+        self.2
+    }
 }
 
 /// The sequential allocation from A = {i}, B = {j} over `members` in order: each joins a
 /// side with probability ∝ |side| · predictive given the side so far. Returns both
-/// sides and ln q, the probability of the choices made; `to_b` records them.
+/// sides and ln q, the probability of the choices made (`to_b` records them), or `None`
+/// once ln q is at or below the side's floor. Every member adds a log-probability ≤ 0, so
+/// ln q so far bounds the final one from above and stopping there decides as the whole
+/// pass would (up to the rounding of the last bits).
 fn sequential<R: Rng + ?Sized, S: Side>(
     x: &[f64],
     (i, j): (usize, usize),
-    members: &[usize],
+    members: impl IntoIterator<Item = usize>,
     side: S,
     (prior, state, tables): (&Prior, &State, &PassTables),
     rng: &mut R,
     to_b: &mut Vec<bool>,
-) -> (Running, Running, f64) {
+) -> Option<(Running, Running, f64)> {
     let mut a = Running::of(x[i]);
     let mut b = Running::of(x[j]);
     // ln q = Σ ln P(side chosen). With r = e^(lo − hi) the likelier side has probability
     // 1/(1 + r) and the other r/(1 + r), so ln q = Σ_(less likely chosen) (lo − hi) +
     // ln Π 1/(1 + r): the product is kept, folded into `log_q` before it can underflow,
-    // and no logarithm is taken per member.
+    // and no logarithm is taken per member. ln q so far is at or below the floor when
+    // kept ≤ e^(floor − log_q).
+    let floor = side.floor();
     let (mut log_q, mut kept) = (0.0, 1.0);
+    let mut kept_floor = (floor - log_q).exp();
     to_b.clear();
     // Each member changes one side, so only that side's terms are recomputed.
     let terms = |r: &Running| tables.terms(prior, state, r.stats);
     let (mut ta, mut tb) = (terms(&a), terms(&b));
     let (mut lna, mut lnb) = (0.0, 0.0);
     let ln_n = &tables.ln_n;
-    for &k in members {
+    for k in members {
         let wa = lna + PassTables::log_predictive(prior.kernel, &ta, x[k]);
         let wb = lnb + PassTables::log_predictive(prior.kernel, &tb, x[k]);
         let b_likelier = wb > wa;
@@ -302,12 +310,21 @@ fn sequential<R: Rng + ?Sized, S: Side>(
         let p_b = if b_likelier { inv } else { r * inv };
         let goes_b = side.goes_b(k, p_b, rng);
         kept *= inv;
+        let mut moved = false;
         if goes_b != b_likelier {
             log_q += lo - hi;
+            moved = true;
         }
         if kept < 1e-280 {
             log_q += shortchain::ln_positive(kept);
             kept = 1.0;
+            moved = true;
+        }
+        if moved {
+            kept_floor = (floor - log_q).exp();
+        }
+        if kept <= kept_floor {
+            return None;
         }
         if goes_b {
             b.push(x[k]);
@@ -321,7 +338,7 @@ fn sequential<R: Rng + ?Sized, S: Side>(
         to_b.push(goes_b);
     }
     log_q += shortchain::ln_positive(kept);
-    (a, b, log_q)
+    (log_q > floor).then_some((a, b, log_q))
 }
 
 /// What the sequential pass reads for a side of n members, tabulated once a call for
@@ -519,9 +536,13 @@ mod tests {
             let mut to_b = Vec::new();
             let parts = (&prior, &state, &tables);
             let (_, _, log_q) = match z {
-                Some(z) => sequential(&x, (0, 1), &members, Follow(z, 1), parts, rng, &mut to_b),
-                None => sequential(&x, (0, 1), &members, Draw, parts, rng, &mut to_b),
-            };
+                Some(z) => {
+                    let follow = Follow(z, 1, f64::NEG_INFINITY);
+                    sequential(&x, (0, 1), members.clone(), follow, parts, rng, &mut to_b)
+                }
+                None => sequential(&x, (0, 1), members.clone(), Draw, parts, rng, &mut to_b),
+            }
+            .unwrap();
             (to_b, log_q)
         };
         let labels = |to_b: &[bool]| -> Vec<u32> {
@@ -560,5 +581,71 @@ mod tests {
         let (back, log_q_back) = pass(Some(&labels(&drawn)), &mut rng);
         assert_eq!(back, drawn);
         assert_eq!(log_q_back.to_bits(), log_q.to_bits());
+    }
+
+    /// A merge's reverse pass stopped at a floor decides as the whole pass does: it
+    /// returns the sides exactly when the whole pass's ln q is above the floor, and when
+    /// the floor is well above that ln q it stops after a part of the members.
+    #[test]
+    fn follow_with_a_floor_decides_as_the_whole_pass() {
+        let mut rng = rand_chacha::ChaCha8Rng::seed_from_u64(23);
+        let n = 402;
+        let x: Vec<f64> = (0..n).map(|_| rng.random::<f64>() * 2.0 - 1.0).collect();
+        let (prior, state) = (
+            prior(Kernel::LocationScale, WeightsKind::Dirichlet),
+            state(2),
+        );
+        let tables = PassTables::new(&prior, n);
+        let parts = (&prior, &state, &tables);
+        let mut to_b = Vec::new();
+        for round in 0..20 {
+            // Labels 0 and 1 over the members, each member to 1 with a probability that
+            // rises with x, so that the split ranges from near-even to a clear cut.
+            let tilt = round as f64 * 0.5;
+            let z: Vec<u32> = (0..n)
+                .map(|k| match k {
+                    0 => 0,
+                    1 => 1,
+                    _ => u32::from(rng.random::<f64>() < 1.0 / (1.0 + (-tilt * x[k]).exp())),
+                })
+                .collect();
+            let whole = |floor: f64, to_b: &mut Vec<bool>| {
+                sequential(
+                    &x,
+                    (0, 1),
+                    2..n,
+                    Follow(&z, 1, floor),
+                    parts,
+                    &mut rng.clone(),
+                    to_b,
+                )
+            };
+            let (_, _, log_q) = whole(f64::NEG_INFINITY, &mut to_b).unwrap();
+            assert_eq!(to_b.len(), n - 2);
+            for floor in [
+                log_q - 1.0,
+                log_q - 1e-9,
+                log_q + 1e-9,
+                log_q + 1.0,
+                0.5 * log_q,
+                0.1 * log_q,
+            ] {
+                let got = whole(floor, &mut to_b);
+                assert_eq!(
+                    got.is_some(),
+                    log_q > floor,
+                    "round {round}, floor {floor}, ln q {log_q}"
+                );
+                if let Some((_, _, q)) = got {
+                    assert_eq!(q.to_bits(), log_q.to_bits());
+                }
+                if floor >= 0.5 * log_q && log_q < -10.0 {
+                    assert!(
+                        to_b.len() < n - 2,
+                        "round {round}: no early stop at {floor}"
+                    );
+                }
+            }
+        }
     }
 }
